@@ -1,0 +1,279 @@
+// Command gen writes the synthetic triage data set: client sessions of a
+// web service, each described by per-session traffic features and labelled
+// with the kind of client that produced it.
+//
+// THE DATA IS SYNTHETIC. Every row is drawn from distributions written in
+// this file; no real traffic was observed. The classes overlap on purpose
+// (careful bots imitate people, some people behave like bots), so no
+// classifier can reach 100% on it.
+//
+// Usage:
+//
+//	go run ./examples/triage/gen [-rows 3000] [-seed 20261202] [-out examples/triage/sessions.csv]
+//
+// The same seed and row count always give the same file.
+package main
+
+import (
+	"bufio"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
+)
+
+// features lists the columns in file order, with what each one measures.
+var features = []struct{ name, meaning string }{
+	{"req_per_min", "requests per minute over the session"},
+	{"error_share", "share of responses with status 4xx or 5xx"},
+	{"distinct_paths", "distinct paths requested per 100 requests"},
+	{"asset_share", "share of requests for static assets (images, scripts, styles)"},
+	{"login_attempts", "login form submissions in the session"},
+	{"login_fail_share", "share of login submissions that failed"},
+	{"interval_cv", "coefficient of variation of the gaps between requests (low = clockwork)"},
+	{"session_min", "session length in minutes"},
+	{"night_share", "share of requests made between 01:00 and 05:00 server time"},
+	{"robots_fetched", "1 if the client fetched /robots.txt"},
+	{"referer_share", "share of requests carrying a Referer header"},
+	{"header_count", "mean number of request headers"},
+	{"resp_kb", "mean response size in KiB"},
+	{"head_share", "share of HEAD requests"},
+	{"path_depth", "mean number of segments in requested paths"},
+	{"revisit_share", "share of requests for a path already requested in the session"},
+}
+
+// kind is one class of client, with its share of sessions.
+type kind struct {
+	name  string
+	share float64
+	draw  func(r *rand.Rand, f []float64)
+}
+
+// Helpers for the class-conditional distributions.
+func logn(r *rand.Rand, mu, sigma float64) float64 { return math.Exp(mu + sigma*r.NormFloat64()) }
+func beta(r *rand.Rand, mean, conc float64) float64 {
+	// A beta draw from two gamma draws; mean in (0,1), conc = a+b.
+	a, b := mean*conc, (1-mean)*conc
+	x, y := gamma(r, a), gamma(r, b)
+	return x / (x + y)
+}
+
+// gamma draws Gamma(shape, 1) by Marsaglia & Tsang (2000), with the usual
+// boost for shape < 1.
+func gamma(r *rand.Rand, shape float64) float64 {
+	if shape < 1 {
+		return gamma(r, shape+1) * math.Pow(r.Float64(), 1/shape)
+	}
+	d := shape - 1.0/3
+	c := 1 / math.Sqrt(9*d)
+	for {
+		x := r.NormFloat64()
+		v := 1 + c*x
+		if v <= 0 {
+			continue
+		}
+		v = v * v * v
+		u := r.Float64()
+		if math.Log(u) < 0.5*x*x+d-d*v+d*math.Log(v) {
+			return d * v
+		}
+	}
+}
+func poisson(r *rand.Rand, lambda float64) float64 {
+	// Knuth's multiplication method; fine for the small means used here.
+	l, k, p := math.Exp(-lambda), 0.0, 1.0
+	for {
+		p *= r.Float64()
+		if p <= l {
+			return k
+		}
+		k++
+	}
+}
+func bern(r *rand.Rand, p float64) float64 {
+	if r.Float64() < p {
+		return 1
+	}
+	return 0
+}
+
+var kinds = []kind{
+	{"human", 0.52, func(r *rand.Rand, f []float64) {
+		f[0] = logn(r, 1.6, 0.6)
+		f[1] = beta(r, 0.04, 40)
+		f[2] = 100 * beta(r, 0.35, 8)
+		f[3] = beta(r, 0.55, 10)
+		f[4] = poisson(r, 0.4)
+		f[5] = failShare(r, f[4], 0.2)
+		f[6] = logn(r, 0.3, 0.35)
+		f[7] = logn(r, 2.0, 0.8)
+		f[8] = beta(r, 0.08, 12)
+		f[9] = bern(r, 0.01)
+		f[10] = beta(r, 0.8, 12)
+		f[11] = 11 + r.NormFloat64()*1.5
+		f[12] = logn(r, 3.2, 0.6)
+		f[13] = beta(r, 0.01, 50)
+		f[14] = 2.2 + 0.6*r.NormFloat64()
+		f[15] = beta(r, 0.3, 10)
+	}},
+	{"crawler", 0.16, func(r *rand.Rand, f []float64) {
+		f[0] = logn(r, 2.6, 0.7)
+		f[1] = beta(r, 0.09, 30)
+		f[2] = 100 * beta(r, 0.85, 15)
+		f[3] = beta(r, 0.08, 15)
+		f[4] = 0
+		f[5] = 0
+		f[6] = logn(r, -0.6, 0.5)
+		f[7] = logn(r, 3.0, 0.9)
+		f[8] = beta(r, 0.2, 10)
+		f[9] = bern(r, 0.85)
+		f[10] = beta(r, 0.1, 10)
+		f[11] = 6 + r.NormFloat64()*1.5
+		f[12] = logn(r, 2.9, 0.6)
+		f[13] = beta(r, 0.06, 20)
+		f[14] = 3.0 + 0.9*r.NormFloat64()
+		f[15] = beta(r, 0.04, 30)
+	}},
+	{"scraper", 0.14, func(r *rand.Rand, f []float64) {
+		// Careful scrapers (sophistication near 1) imitate people.
+		s := r.Float64()
+		mix := func(bot, person float64) float64 { return (1-s)*bot + s*person }
+		f[0] = logn(r, mix(3.0, 1.9), 0.6)
+		f[1] = beta(r, mix(0.12, 0.05), 25)
+		f[2] = 100 * beta(r, mix(0.7, 0.45), 10)
+		f[3] = beta(r, mix(0.05, 0.4), 10)
+		f[4] = poisson(r, 0.1)
+		f[5] = failShare(r, f[4], 0.3)
+		f[6] = logn(r, mix(-0.8, 0.1), 0.45)
+		f[7] = logn(r, 2.6, 0.9)
+		f[8] = beta(r, 0.15, 10)
+		f[9] = bern(r, 0.15)
+		f[10] = beta(r, mix(0.15, 0.7), 10)
+		f[11] = mix(7, 10.5) + r.NormFloat64()*1.5
+		f[12] = logn(r, 3.6, 0.5)
+		f[13] = beta(r, 0.02, 40)
+		f[14] = 3.4 + 0.7*r.NormFloat64()
+		f[15] = beta(r, 0.1, 15)
+	}},
+	{"stuffer", 0.08, func(r *rand.Rand, f []float64) {
+		f[0] = logn(r, 2.3, 0.8)
+		f[1] = beta(r, 0.35, 10)
+		f[2] = 100 * beta(r, 0.08, 15)
+		f[3] = beta(r, 0.1, 10)
+		f[4] = 1 + poisson(r, 12)
+		f[5] = failShare(r, f[4], 0.85)
+		f[6] = logn(r, -0.2, 0.6)
+		f[7] = logn(r, 1.6, 0.9)
+		f[8] = beta(r, 0.25, 8)
+		f[9] = bern(r, 0.02)
+		f[10] = beta(r, 0.45, 6)
+		f[11] = 9 + r.NormFloat64()*2
+		f[12] = logn(r, 1.5, 0.5)
+		f[13] = beta(r, 0.02, 40)
+		f[14] = 1.6 + 0.4*r.NormFloat64()
+		f[15] = beta(r, 0.6, 10)
+	}},
+	{"monitor", 0.10, func(r *rand.Rand, f []float64) {
+		f[0] = logn(r, 0.2, 0.7)
+		f[1] = beta(r, 0.03, 30)
+		f[2] = 100 * beta(r, 0.03, 20)
+		f[3] = beta(r, 0.03, 20)
+		f[4] = poisson(r, 0.05)
+		f[5] = failShare(r, f[4], 0.1)
+		f[6] = logn(r, -1.4, 0.6)
+		f[7] = logn(r, 4.0, 0.8)
+		f[8] = beta(r, 0.17, 30)
+		f[9] = bern(r, 0.05)
+		f[10] = beta(r, 0.02, 30)
+		f[11] = 5 + r.NormFloat64()*1.2
+		f[12] = logn(r, 0.8, 0.7)
+		f[13] = beta(r, 0.4, 4)
+		f[14] = 1.3 + 0.4*r.NormFloat64()
+		f[15] = beta(r, 0.95, 30)
+	}},
+}
+
+// failShare draws the share of failed logins among n attempts.
+func failShare(r *rand.Rand, n, p float64) float64 {
+	if n == 0 {
+		return 0
+	}
+	fail := 0.0
+	for i := 0; i < int(n); i++ {
+		fail += bern(r, p)
+	}
+	return fail / n
+}
+
+func main() {
+	rows := flag.Int("rows", 3000, "number of sessions to write")
+	seed := flag.Uint64("seed", 20261202, "random seed")
+	out := flag.String("out", filepath.Join("examples", "triage", "sessions.csv"), "output CSV file")
+	flag.Parse()
+	if *rows < 1 {
+		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
+		os.Exit(2)
+	}
+	tmp, err := os.CreateTemp(filepath.Dir(*out), ".sessions-*.csv")
+	if err == nil {
+		err = tmp.Chmod(0o644)
+	}
+	if err == nil {
+		err = write(tmp, *rows, *seed)
+		if cerr := tmp.Close(); err == nil {
+			err = cerr
+		}
+		if err == nil {
+			err = os.Rename(tmp.Name(), *out)
+		} else {
+			os.Remove(tmp.Name())
+		}
+	}
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "gen:", err)
+		os.Exit(1)
+	}
+}
+
+// write draws n sessions and writes them as CSV with a header row and the
+// class in the last column.
+func write(w io.Writer, n int, seed uint64) error {
+	r := rand.New(rand.NewPCG(seed, 0x7472696167650a))
+	bw := bufio.NewWriter(w)
+	for _, f := range features {
+		bw.WriteString(f.name)
+		bw.WriteByte(',')
+	}
+	bw.WriteString("kind\n")
+	f := make([]float64, len(features))
+	var buf []byte
+	for i := 0; i < n; i++ {
+		u, k := r.Float64(), 0
+		for acc := kinds[0].share; u > acc && k < len(kinds)-1; {
+			k++
+			acc += kinds[k].share
+		}
+		kinds[k].draw(r, f)
+		// 2% of labels are wrong, as hand labels of traffic are (an
+		// assumption of this demo, not a measured rate).
+		label := kinds[k].name
+		if r.Float64() < 0.02 {
+			label = kinds[r.IntN(len(kinds))].name
+		}
+		for j, v := range f {
+			if j == 11 || j == 14 {
+				v = math.Max(v, 1)
+			}
+			buf = strconv.AppendFloat(buf[:0], v, 'g', 4, 64)
+			bw.Write(buf)
+			bw.WriteByte(',')
+		}
+		bw.WriteString(label)
+		bw.WriteByte('\n')
+	}
+	return bw.Flush()
+}
