@@ -1,0 +1,234 @@
+package nn
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+
+	"github.com/seine-ml/seine/spec"
+)
+
+// Tile sizes of gemm. gonum's Dgemm computes a product on one goroutine
+// when C spans fewer than 4 of its 64×64 blocks and otherwise starts
+// goroutines (allocating on every call). gemm hands it tiles of at most
+// 64×192, i.e. 3 blocks, so every product runs serially, allocates nothing,
+// and sums over the inner dimension in one fixed order.
+const (
+	tileRows = 64
+	tileCols = 192
+)
+
+// sub returns the r×c submatrix of g whose top-left element is g[i, j].
+func sub(g blas64.General, i, j, r, c int) blas64.General {
+	return blas64.General{Rows: r, Cols: c, Stride: g.Stride, Data: g.Data[i*g.Stride+j : (i+r-1)*g.Stride+j+c]}
+}
+
+// gemm computes C = alpha·op(A)·op(B) + beta·C tile by tile (see tileRows).
+func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
+	if c.Rows == 0 || c.Cols == 0 {
+		return
+	}
+	k := a.Cols
+	if tA == blas.Trans {
+		k = a.Rows
+	}
+	for i := 0; i < c.Rows; i += tileRows {
+		ri := min(tileRows, c.Rows-i)
+		var as blas64.General
+		if tA == blas.Trans {
+			as = sub(a, 0, i, k, ri)
+		} else {
+			as = sub(a, i, 0, ri, k)
+		}
+		for j := 0; j < c.Cols; j += tileCols {
+			cj := min(tileCols, c.Cols-j)
+			var bs blas64.General
+			if tB == blas.Trans {
+				bs = sub(b, j, 0, cj, k)
+			} else {
+				bs = sub(b, 0, j, k, cj)
+			}
+			blas64.Gemm(tA, tB, alpha, as, bs, beta, sub(c, i, j, ri, cj))
+		}
+	}
+}
+
+// work holds the buffers of one forward and backward pass over up to rows
+// rows: for layer l = 1…L, z[l−1] and a[l−1] hold Z_l and A_l and d[l−1]
+// holds Δ_l (all row-major, rows × n_l). grad holds the summed (not yet
+// averaged) gradient of the rows; loss their summed loss.
+type work struct {
+	rows    int
+	z, a, d [][]float64
+	grad    []float64
+	loss    float64
+}
+
+func newWork(n *Net, rows int, backward bool) *work {
+	rows = max(rows, 1)
+	L := n.NumLayers()
+	w := &work{rows: rows, z: make([][]float64, L), a: make([][]float64, L)}
+	if backward {
+		w.d = make([][]float64, L)
+		w.grad = make([]float64, n.np)
+	}
+	for l := 0; l < L; l++ {
+		k := rows * n.sizes[l+1]
+		w.z[l] = make([]float64, k)
+		w.a[l] = make([]float64, k)
+		if backward {
+			w.d[l] = make([]float64, k)
+		}
+	}
+	return w
+}
+
+func mat64(data []float64, r, c int) blas64.General {
+	return blas64.General{Rows: r, Cols: c, Stride: c, Data: data[:r*c]}
+}
+
+// forward computes Z_l = A_{l−1}·W_{l−1}ᵀ + 1·b_{l−1}ᵀ and A_l = g(Z_l) for
+// the hidden layers and returns Z_L, the output pre-activations. x holds the
+// rows (A_0), x.Rows ≤ w.rows.
+func (w *work) forward(n *Net, params []float64, x blas64.General) blas64.General {
+	r := x.Rows
+	in := x
+	L := n.NumLayers()
+	for l := 0; l < L; l++ {
+		k := n.sizes[l+1]
+		z := mat64(w.z[l], r, k)
+		b := params[n.bOff[l] : n.bOff[l]+k]
+		for i := 0; i < r; i++ {
+			copy(z.Data[i*k:(i+1)*k], b)
+		}
+		gemm(blas.NoTrans, blas.Trans, 1, in, n.weights(params, l), 1, z)
+		if l == L-1 {
+			return z
+		}
+		a := mat64(w.a[l], r, k)
+		activate(n.act[l], a.Data, z.Data)
+		in = a
+	}
+	panic("unreachable")
+}
+
+// probabilities sets h to the output probabilities for pre-activations z:
+// σ(z_k) per unit, or softmax e^(z_k−max)/Σ_j e^(z_j−max) per row.
+func probabilities(g spec.Activation, h []float64, z blas64.General) {
+	K := z.Cols
+	for i := 0; i < z.Rows; i++ {
+		zi := z.Data[i*z.Stride : i*z.Stride+K]
+		hi := h[i*K : (i+1)*K]
+		if g == spec.Sigmoid {
+			for k, v := range zi {
+				hi[k] = sigmoid(v)
+			}
+			continue
+		}
+		mx := math.Inf(-1)
+		for _, v := range zi {
+			mx = math.Max(mx, v)
+		}
+		s := 0.0
+		for k, v := range zi {
+			hi[k] = math.Exp(v - mx)
+			s += hi[k]
+		}
+		for k := range hi {
+			hi[k] /= s
+		}
+	}
+}
+
+// outputLoss returns the summed loss of the rows with pre-activations z and
+// targets t and, when d is non-nil, sets d to ∂loss/∂z (see doc.go):
+//
+//	sigmoid: loss = Σ_k softplus(z_k) − y_k z_k,   ∂/∂z_k = σ(z_k) − y_k
+//	softmax: loss = Σ_k y_k (lse(z) − z_k),        ∂/∂z_k = (Σ_j y_j)·h_k − y_k
+func outputLoss(g spec.Activation, d []float64, z, t blas64.General) float64 {
+	K := z.Cols
+	total := 0.0
+	for i := 0; i < z.Rows; i++ {
+		zi := z.Data[i*z.Stride : i*z.Stride+K]
+		yi := t.Data[i*t.Stride : i*t.Stride+K]
+		row := 0.0
+		if g == spec.Sigmoid {
+			for k, v := range zi {
+				row += softplus(v) - yi[k]*v
+			}
+			if d != nil {
+				di := d[i*K : (i+1)*K]
+				for k, v := range zi {
+					di[k] = sigmoid(v) - yi[k]
+				}
+			}
+			total += row
+			continue
+		}
+		mx := math.Inf(-1)
+		for _, v := range zi {
+			mx = math.Max(mx, v)
+		}
+		s := 0.0
+		for _, v := range zi {
+			s += math.Exp(v - mx)
+		}
+		lse := mx + math.Log(s)
+		sy := 0.0
+		for k, v := range zi {
+			if y := yi[k]; y != 0 {
+				row += y * (lse - v)
+				sy += y
+			}
+		}
+		if d != nil {
+			di := d[i*K : (i+1)*K]
+			for k, v := range zi {
+				di[k] = sy*math.Exp(v-lse) - yi[k]
+			}
+		}
+		total += row
+	}
+	return total
+}
+
+// eval sets w.loss to the summed loss of the rows x with targets t and, when
+// backward, w.grad to the summed gradient by backpropagation (Rumelhart,
+// Hinton & Williams 1986):
+//
+//	Δ_L = ∂loss/∂Z_L,  ∂W_l = Δ_{l+1}ᵀ·A_l,  ∂b_l = Δ_{l+1}ᵀ·1,
+//	Δ_l = (Δ_{l+1}·W_l) ⊙ g′(Z_l).
+func (w *work) eval(n *Net, params []float64, x, t blas64.General, backward bool) {
+	r := x.Rows
+	L := n.NumLayers()
+	zL := w.forward(n, params, x)
+	if !backward {
+		w.loss = outputLoss(n.act[L-1], nil, zL, t)
+		return
+	}
+	w.loss = outputLoss(n.act[L-1], w.d[L-1], zL, t)
+	for l := L - 1; l >= 0; l-- {
+		in, out := n.sizes[l], n.sizes[l+1]
+		dl := mat64(w.d[l], r, out)
+		al := x
+		if l > 0 {
+			al = mat64(w.a[l-1], r, in)
+		}
+		gw := w.grad[n.wOff[l] : n.wOff[l]+out*in]
+		gemm(blas.Trans, blas.NoTrans, 1, dl, al, 0, mat64(gw, out, in))
+		gb := w.grad[n.bOff[l] : n.bOff[l]+out]
+		copy(gb, dl.Data[:out])
+		for i := 1; i < r; i++ {
+			row := dl.Data[i*out : (i+1)*out]
+			for j, v := range row {
+				gb[j] += v
+			}
+		}
+		if l > 0 {
+			dp := mat64(w.d[l-1], r, in)
+			gemm(blas.NoTrans, blas.NoTrans, 1, dl, n.weights(params, l), 0, dp)
+			mulDerivative(n.act[l-1], dp.Data, w.z[l-1], w.a[l-1])
+		}
+	}
+}
