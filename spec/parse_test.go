@@ -1,0 +1,304 @@
+package spec
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+func parseFile(t *testing.T, path string) (*Network, error) {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return Parse(bytes.NewReader(data))
+}
+
+func TestParseGood(t *testing.T) {
+	tests := []struct {
+		file string
+		want *Network
+	}{
+		{"full.yaml", &Network{
+			Version: 1, Name: "request-triage", Inputs: 12,
+			Hidden: []Layer{{32, Tanh}, {16, ReLU}},
+			Output: Output{Classes: []string{"human", "crawler", "scraper", "stuffer"}, Activation: Softmax},
+			// 1.0 and 1e-6 are YAML 1.2 floats (§10.3.2, core schema).
+			Penalty: Penalty{L2: 1},
+			Init:    Init{Scheme: GlorotUniform, Scale: 0.1, Seed: 7},
+			Train:   Train{Optimizer: LBFGS, Iterations: 400, Rate: 0.01, Tolerance: 1e-6},
+		}},
+		{"units.yaml", &Network{
+			Version: 1, Inputs: 4,
+			Output: Output{Classes: []string{"0", "1", "2"}, Activation: Softmax},
+			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+		}},
+		{"features.yaml", &Network{
+			Version: 1, Name: "2024", Inputs: 4,
+			Features: []string{"age", "bytes", "path depth", "true"},
+			Hidden:   []Layer{{8, LeakyReLU}},
+			Output:   Output{Classes: []string{"ok", "spam"}, Activation: Sigmoid},
+			Init:     Init{Scheme: HeUniform, Seed: 1<<64 - 1},
+			Train:    Train{Optimizer: Adam, Batch: 32, Rate: 1e-3},
+		}},
+		{"multilabel.yaml", &Network{
+			// 0x10, 1_000 and 1e2 are integers in the forms the YAML
+			// decoder resolves (hex, underscores, whole float).
+			Version: 1, Inputs: 16,
+			Hidden:  []Layer{{5, Softplus}, {1000, Identity}, {100, Sigmoid}},
+			Output:  Output{Classes: []string{"urgent"}, Activation: Sigmoid, Multilabel: true},
+			Penalty: Penalty{L2: 0.5, L1: 2, Bias: true},
+			Init:    Init{Scheme: Uniform, Scale: 0.05, Seed: 0},
+			Train:   Train{Optimizer: Momentum, Iterations: 10},
+		}},
+		{"anchors.yaml", &Network{
+			Version: 1, Inputs: 3,
+			Hidden: []Layer{{4, ReLU}, {4, ReLU}},
+			Output: Output{Classes: []string{"a", "b", "c"}, Activation: Softmax},
+			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+		}},
+		{"crlf.yaml", &Network{
+			// yes and no are strings in YAML 1.2 (only true/false are booleans).
+			Version: 1, Inputs: 2,
+			Output: Output{Classes: []string{"yes", "no"}, Activation: Sigmoid},
+			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+		}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.file, func(t *testing.T) {
+			got, err := parseFile(t, filepath.Join("testdata", "good", tt.file))
+			if err != nil {
+				t.Fatalf("Parse: %v", err)
+			}
+			if !reflect.DeepEqual(got, tt.want) {
+				t.Errorf("Parse:\n got %#v\nwant %#v", got, tt.want)
+			}
+			if err := got.Validate(); err != nil {
+				t.Errorf("Validate of a parsed spec: %v", err)
+			}
+		})
+	}
+}
+
+// A minimal valid spec; bad rows below change one thing in it.
+const head = "version: 1\ninputs: 2\n"
+
+type badTest struct {
+	name   string
+	src    string
+	line   int
+	col    int
+	field  string
+	kind   error
+	substr string // part of the message
+}
+
+var badTests = []badTest{
+	// Structure and types.
+	{"empty", "", 0, 0, "", ErrEmpty, "empty spec"},
+	{"comment only", "# nothing\n", 0, 0, "", ErrEmpty, "empty spec"},
+	{"null document", "---\n~\n", 2, 1, "", ErrEmpty, "empty spec"},
+	{"root list", "- 1\n", 1, 1, "", ErrType, "want a mapping, got a list"},
+	{"two documents", head + "output: {units: 2}\n---\nversion: 1\n", 4, 1, "", ErrSyntax, "more than one YAML document"},
+	{"unknown key top", head + "output: {units: 2}\noutputs: 3\n", 4, 1, "outputs", ErrUnknownField, `unknown key "outputs" (want one of version, name, inputs`},
+	{"unknown key nested", head + "output: {units: 2}\ntrain:\n  epochs: 3\n", 5, 3, "train.epochs", ErrUnknownField, "want one of optimizer, iterations"},
+	{"unknown key layer", head + "hidden:\n  - units: 2\n    activation: relu\n    dropout: 0.5\noutput: {units: 2}\n", 6, 5, "hidden[0].dropout", ErrUnknownField, `"dropout"`},
+	{"duplicate key", head + "output: {units: 2}\nversion: 1\n", 4, 1, "version", ErrDuplicate, "first at line 1"},
+	{"duplicate nested key", head + "output: {units: 2, units: 3}\n", 3, 20, "output.units", ErrDuplicate, "duplicate key"},
+	{"missing version", "inputs: 2\noutput: {units: 2}\n", 1, 1, "version", ErrMissingField, "missing key version"},
+	{"missing inputs", "version: 1\noutput: {units: 2}\n", 1, 1, "inputs", ErrMissingField, "missing key inputs"},
+	{"null inputs", "version: 1\ninputs:\noutput: {units: 2}\n", 1, 1, "inputs", ErrMissingField, "missing key inputs"},
+	{"missing output", head, 1, 1, "output", ErrMissingField, "missing key output"},
+	{"missing classes", head + "output:\n  activation: softmax\n", 4, 3, "output.classes", ErrMissingField, "missing classes or units"},
+	{"classes and units", head + "output:\n  classes: [a, b]\n  units: 2\n", 5, 10, "output.units", ErrConflict, "not both"},
+	{"missing units", head + "hidden:\n  - activation: relu\noutput: {units: 2}\n", 4, 5, "hidden[0].units", ErrMissingField, "missing key units"},
+	{"missing hidden activation", head + "hidden:\n  - units: 3\noutput: {units: 2}\n", 4, 5, "hidden[0].activation", ErrMissingField, "want one of sigmoid, tanh"},
+	{"version string", "version: one\ninputs: 2\noutput: {units: 2}\n", 1, 10, "version", ErrType, `want an integer, got "one"`},
+	{"inputs mapping", "version: 1\ninputs: {a: 1}\noutput: {units: 2}\n", 2, 9, "inputs", ErrType, "want a count or a list of feature names"},
+	{"inputs fraction", "version: 1\ninputs: 2.5\noutput: {units: 2}\n", 2, 9, "inputs", ErrType, "want an integer, got number 2.5"},
+	{"hidden not list", head + "hidden: 3\noutput: {units: 2}\n", 3, 9, "hidden", ErrType, "want a list of layers"},
+	{"layer not mapping", head + "hidden: [3]\noutput: {units: 2}\n", 3, 10, "hidden[0]", ErrType, "want a mapping, got integer 3"},
+	{"classes scalar", head + "output: {classes: a}\n", 3, 19, "output.classes", ErrType, "want a list of class names"},
+	{"class null", head + "output: {classes: [a, ~]}\n", 3, 23, "output.classes[1]", ErrType, "want a class name, got null"},
+	{"multilabel string", head + "output: {units: 2, activation: sigmoid, multilabel: yes}\n", 3, 53, "output.multilabel", ErrType, `want true or false, got "yes"`},
+	{"penalty bias number", head + "output: {units: 2}\npenalty: {bias: 1}\n", 4, 17, "penalty.bias", ErrType, "want true or false"},
+	{"l2 string", head + "output: {units: 2}\npenalty: {l2: lots}\n", 4, 15, "penalty.l2", ErrType, `want a number, got "lots"`},
+	{"tagged int", head + "output: {units: !!str 2}\n", 3, 17, "output.units", ErrType, `want an integer, got "2"`},
+	{"key is a list", head + "output: {units: 2}\n[a]: 1\n", 4, 1, "?", ErrType, "want a key name"},
+	{"penalty list", head + "output: {units: 2}\npenalty: [1]\n", 4, 10, "penalty", ErrType, "want a mapping, got a list"},
+
+	// Names.
+	{"unknown activation", head + "hidden:\n  - units: 3\n    activation: tanhh\noutput: {units: 2}\n", 5, 17, "hidden[0].activation", ErrUnknownName,
+		`unknown activation "tanhh" (want one of sigmoid, tanh, relu, leaky-relu, softplus, identity)`},
+	{"softmax hidden", head + "hidden:\n  - units: 3\n    activation: softmax\noutput: {units: 2}\n", 5, 17, "hidden[0].activation", ErrRange, "only for the output layer"},
+	{"tanh output", head + "output: {units: 2, activation: tanh}\n", 3, 32, "output.activation", ErrRange, "tanh is not an output activation (want one of softmax, sigmoid)"},
+	{"unknown output activation", head + "output: {units: 2, activation: Softmax}\n", 3, 32, "output.activation", ErrUnknownName, `unknown activation "Softmax"`},
+	{"unknown scheme", head + "output: {units: 2}\ninit: {scheme: xavier}\n", 4, 16, "init.scheme", ErrUnknownName, "want one of glorot-uniform, he-uniform, uniform"},
+	{"unknown optimizer", head + "output: {units: 2}\ntrain: {optimizer: sgd}\n", 4, 20, "train.optimizer", ErrUnknownName, "want one of gd, cg, lbfgs, momentum, adam"},
+	{"duplicate class", head + "output: {classes: [a, b, a]}\n", 3, 26, "output.classes[2]", ErrDuplicate, `duplicate class name "a" (also output.classes[0])`},
+	{"empty class", head + "output: {classes: [a, '']}\n", 3, 23, "output.classes[1]", ErrRange, "empty class name"},
+	{"duplicate feature", "version: 1\ninputs: [x, y, x]\noutput: {units: 2}\n", 2, 16, "inputs[2]", ErrDuplicate, `duplicate feature name "x"`},
+	{"empty feature list", "version: 1\ninputs: []\noutput: {units: 2}\n", 2, 9, "inputs", ErrRange, "want at least 1 inputs, got 0"},
+
+	// Ranges.
+	{"version 2", "version: 2\ninputs: 2\noutput: {units: 2}\n", 1, 10, "version", ErrVersion, "unsupported version 2 (this package reads version 1)"},
+	{"inputs zero", "version: 1\ninputs: 0\noutput: {units: 2}\n", 2, 9, "inputs", ErrRange, "want at least 1 inputs"},
+	{"units zero", head + "hidden: [{units: 0, activation: relu}]\noutput: {units: 2}\n", 3, 18, "hidden[0].units", ErrRange, "want at least 1 units, got 0"},
+	{"units negative", head + "hidden: [{units: -4, activation: relu}]\noutput: {units: 2}\n", 3, 18, "hidden[0].units", ErrRange, "got -4"},
+	{"units 1e12", head + "hidden: [{units: 1e12, activation: relu}]\noutput: {units: 2}\n", 3, 18, "hidden[0].units", ErrTooLarge, "1000000000000 units exceed the param limit 50000000"},
+	{"units 1e30", head + "hidden: [{units: 1e30, activation: relu}]\noutput: {units: 2}\n", 3, 18, "hidden[0].units", ErrRange, "integer 1e30 is too large"},
+	{"units beyond int64", head + "hidden: [{units: 99999999999999999999, activation: relu}]\noutput: {units: 2}\n", 3, 18, "hidden[0].units", ErrRange, "too large"},
+	{"inputs huge", "version: 1\ninputs: 9223372036854775807\noutput: {units: 2}\n", 2, 9, "inputs", ErrTooLarge, "exceed the param limit"},
+	{"softmax one class", head + "output: {classes: [a]}\n", 3, 19, "output.classes", ErrRange, "want at least 2 classes for a softmax output, got 1"},
+	{"softmax units one", head + "output: {units: 1}\n", 3, 17, "output.units", ErrRange, "want at least 2 classes for a softmax output, got 1"},
+	{"sigmoid one class", head + "output: {classes: [a], activation: sigmoid}\n", 3, 19, "output.classes", ErrRange, "for a sigmoid output, got 1"},
+	{"multilabel zero", head + "output: {classes: [], activation: sigmoid, multilabel: true}\n", 3, 19, "output.classes", ErrRange, "want at least 1 class for a multilabel sigmoid output, got 0"},
+	{"units too many classes", head + "output: {units: 100000}\n", 3, 17, "output.units", ErrTooLarge, "100000 classes exceed the limit 65536"},
+	{"multilabel softmax", head + "output: {units: 2, multilabel: true}\n", 3, 32, "output.multilabel", ErrConflict, "multilabel needs a sigmoid output"},
+	{"negative l2", head + "output: {units: 2}\npenalty: {l2: -0.1}\n", 4, 15, "penalty.l2", ErrRange, "want a number ≥ 0, got -0.1"},
+	{"nan l1", head + "output: {units: 2}\npenalty: {l1: .nan}\n", 4, 15, "penalty.l1", ErrRange, "want a finite number, got NaN"},
+	{"inf rate", head + "output: {units: 2}\ntrain: {rate: .inf}\n", 4, 15, "train.rate", ErrRange, "want a finite number, got +Inf"},
+	{"negative tolerance", head + "output: {units: 2}\ntrain: {tolerance: -1e-6}\n", 4, 20, "train.tolerance", ErrRange, "≥ 0"},
+	{"negative iterations", head + "output: {units: 2}\ntrain: {iterations: -1}\n", 4, 21, "train.iterations", ErrRange, "want iterations ≥ 0, got -1"},
+	{"negative batch", head + "output: {units: 2}\ntrain: {batch: -8}\n", 4, 16, "train.batch", ErrRange, "want batch ≥ 0"},
+	{"negative seed", head + "output: {units: 2}\ninit: {seed: -1}\n", 4, 14, "init.seed", ErrRange, "want an integer ≥ 0, got -1"},
+	{"uniform without scale", head + "output: {units: 2}\ninit:\n  scheme: uniform\n", 5, 3, "init.scale", ErrRange, "uniform needs a scale > 0"},
+	{"uniform zero scale", head + "output: {units: 2}\ninit: {scheme: uniform, scale: 0}\n", 4, 32, "init.scale", ErrRange, "uniform needs a scale > 0"},
+	{"negative scale", head + "output: {units: 2}\ninit: {scale: -1}\n", 4, 15, "init.scale", ErrRange, "≥ 0"},
+	{"param limit", "version: 1\ninputs: 5000\nhidden:\n  - {units: 5000, activation: relu}\n  - {units: 5000, activation: relu}\noutput: {units: 2}\n",
+		5, 13, "hidden[1].units", ErrTooLarge, "param count exceeds the limit 50000000"},
+	{"param limit at output", "version: 1\ninputs: 50000\nhidden: [{units: 999, activation: relu}]\noutput: {units: 1000}\n",
+		4, 17, "output.units", ErrTooLarge, "param count exceeds the limit"},
+
+	// Syntax.
+	{"tab indent", head + "output:\n\tunits: 2\n", 4, 1, "", ErrSyntax, "tab character in indentation"},
+	{"tab after spaces", head + "output:\n  units: 2\n \tactivation: softmax\n", 5, 2, "", ErrSyntax, "tab character in indentation"},
+	{"unclosed flow", head + "output: {units: 2\n", 3, 0, "", ErrSyntax, "syntax: did not find expected ',' or '}'"},
+	{"bad indent", head + "output:\n  units: 2\n activation: softmax\n", 5, 0, "", ErrSyntax, "syntax: did not find expected key"},
+	{"first line", "version: 1: 2\n", 1, 0, "", ErrSyntax, "mapping values are not allowed"},
+	{"unknown alias", head + "output: *out\n", 3, 9, "", ErrSyntax, "alias *out refers to no anchor"},
+	{"invalid utf8", head + "name: \xff\n", 3, 7, "", ErrSyntax, "invalid UTF-8 byte 0xff"},
+	{"control char", head + "name: \"a\x01\"\n", 3, 9, "", ErrSyntax, "control character U+0001"},
+}
+
+func TestParseBad(t *testing.T) {
+	for _, tt := range badTests {
+		t.Run(tt.name, func(t *testing.T) {
+			n, err := Parse(strings.NewReader(tt.src))
+			if err == nil {
+				t.Fatalf("Parse succeeded: %+v", n)
+			}
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %v (%T) is not a *Error", err, err)
+			}
+			if l, ok := err.(ErrorList); ok {
+				t.Fatalf("want one problem, got %d:\n%v", len(l), err)
+			}
+			if e.Line != tt.line || e.Column != tt.col || e.Field != tt.field {
+				t.Errorf("got %d:%d %q, want %d:%d %q (%v)", e.Line, e.Column, e.Field, tt.line, tt.col, tt.field, err)
+			}
+			if !errors.Is(err, tt.kind) {
+				t.Errorf("error %v does not wrap %v", err, tt.kind)
+			}
+			if !strings.Contains(err.Error(), tt.substr) {
+				t.Errorf("error %q does not contain %q", err, tt.substr)
+			}
+		})
+	}
+}
+
+func TestParseBadFiles(t *testing.T) {
+	tests := []struct {
+		file  string
+		line  int
+		col   int
+		field string
+		kind  error
+	}{
+		{"tab.yaml", 4, 1, "", ErrSyntax},
+		{"duplicate.yaml", 5, 1, "inputs", ErrDuplicate},
+		{"huge_units.yaml", 4, 12, "hidden[0].units", ErrTooLarge},
+	}
+	for _, tt := range tests {
+		t.Run(tt.file, func(t *testing.T) {
+			_, err := parseFile(t, filepath.Join("testdata", "bad", tt.file))
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %v (%T) is not a *Error", err, err)
+			}
+			if e.Line != tt.line || e.Column != tt.col || e.Field != tt.field || !errors.Is(err, tt.kind) {
+				t.Errorf("got %v at %d:%d %q; want %v at %d:%d %q", e.Err, e.Line, e.Column, e.Field, tt.kind, tt.line, tt.col, tt.field)
+			}
+		})
+	}
+}
+
+// TestParseSeveral checks that one pass reports every problem, in order,
+// and no follow-on problem twice.
+func TestParseSeveral(t *testing.T) {
+	_, err := parseFile(t, filepath.Join("testdata", "bad", "several.yaml"))
+	var list ErrorList
+	if !errors.As(err, &list) {
+		t.Fatalf("want an ErrorList, got %T: %v", err, err)
+	}
+	want := []struct {
+		line, col int
+		field     string
+		kind      error
+	}{
+		{1, 10, "version", ErrVersion},
+		{2, 9, "inputs", ErrRange},
+		{5, 17, "hidden[0].activation", ErrUnknownName},
+		{6, 12, "hidden[1].units", ErrRange},
+		{7, 17, "hidden[1].activation", ErrRange},
+		{9, 19, "output.classes[2]", ErrDuplicate},
+		{11, 15, "output.multilabel", ErrConflict},
+		{13, 7, "penalty.l2", ErrRange},
+		{14, 3, "penalty.l3", ErrUnknownField},
+		{16, 3, "init.scale", ErrRange}, // absent: at its mapping
+		{18, 9, "train.rate", ErrRange},
+		{19, 14, "train.optimizer", ErrUnknownName},
+	}
+	if len(list) != len(want) {
+		t.Fatalf("got %d problems, want %d:\n%v", len(list), len(want), err)
+	}
+	for i, w := range want {
+		e := list[i]
+		if e.Line != w.line || e.Column != w.col || e.Field != w.field || !errors.Is(e, w.kind) {
+			t.Errorf("problem %d: got %v (%d:%d %q), want %v at %d:%d %q", i, e, e.Line, e.Column, e.Field, w.kind, w.line, w.col, w.field)
+		}
+	}
+	for _, kind := range []error{ErrVersion, ErrUnknownField, ErrDuplicate} {
+		if !errors.Is(err, kind) {
+			t.Errorf("errors.Is(list, %v) = false", kind)
+		}
+	}
+}
+
+func TestErrorFormat(t *testing.T) {
+	tests := []struct {
+		e    *Error
+		want string
+	}{
+		{&Error{Line: 3, Column: 17, Field: "hidden[1].activation", Err: newDetail(ErrUnknownName, "unknown activation %q", "tanhh")},
+			`3:17: hidden[1].activation: unknown activation "tanhh"`},
+		{&Error{Line: 3, Err: newDetail(ErrSyntax, "syntax: x")}, "3: syntax: x"},
+		{&Error{Field: "inputs", Err: newDetail(ErrRange, "bad")}, "inputs: bad"},
+		{&Error{Err: ErrEmpty}, "spec: empty document"},
+	}
+	for _, tt := range tests {
+		if got := tt.e.Error(); got != tt.want {
+			t.Errorf("got %q, want %q", got, tt.want)
+		}
+	}
+	l := ErrorList{tests[0].e, tests[1].e}
+	if got, want := l.Error(), tests[0].want+"\n"+tests[1].want; got != want {
+		t.Errorf("list: got %q, want %q", got, want)
+	}
+}
