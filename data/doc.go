@@ -1,0 +1,77 @@
+// Package data reads data sets from CSV into matrices, fits the feature
+// scaler, and deals rows into stratified splits, folds and mini-batches.
+// It imports no other package of the module.
+//
+// # CSV
+//
+// ReadCSV reads RFC 4180 text (Shafranovich, 2005): fields separated by
+// commas (or CSVOptions.Comma), a field in double quotes may hold the
+// separator, line breaks and doubled quotes (""), and lines may end in LF
+// or CRLF. A UTF-8 byte order mark at the start is skipped, blank lines
+// are skipped, and spaces around a value are trimmed.
+//
+// The first row must be a header naming the columns; names are trimmed and
+// must be distinct. A first row that is all numbers is reported as a
+// missing header. The label column is CSVOptions.Label, or the last column;
+// every other column is a feature unless CSVOptions.Features picks columns
+// by name. Every data row must have as many fields as the header. A
+// feature cell must be a finite decimal number: an empty cell, a
+// non-number, NaN, ±Inf or a value beyond the float64 range is an error.
+// A label is a class name (a word or an integer) matched exactly after
+// trimming; in a multi-label file a label cell lists classes separated by
+// '|', and an empty cell means no class.
+//
+// Each problem is a *Error naming the 1-based line (as an editor shows it),
+// the 1-based data row and the column, for example
+//
+//	line 7 (row 6), column "petal_width": "abc" is not a number
+//
+// and wrapping a sentinel such as ErrNotNumber. Size limits (columns, bytes
+// per line, rows) bound the memory a hostile file can make ReadCSV use.
+//
+// # Targets
+//
+// For K classes, Set.Y has K columns. Single-label: row i is one-hot,
+// Y[i][c] = 1 when the row's class is c, else 0. Multi-label: row i is
+// multi-hot, Y[i][c] = 1 for every class c listed in its cell.
+//
+// # Scaler
+//
+// A Scaler standardizes each feature column j:
+//
+//	x'_j = (x_j − μ_j) / s_j,   μ_j = (1/n) Σ_i x_ij,
+//	s_j = √( Σ_i (x_ij − μ_j)² / (n − 1) )
+//
+// the sample standard deviation, as gonum's stat.MeanStdDev computes it;
+// a constant column gets s_j = 1 (centred, not scaled) and a warning. It
+// must be fitted on training rows only, never on holdout or prediction
+// rows, so that nothing about held-out rows leaks into training; that is
+// the caller's job: split first, then FitScaler(train.X).
+//
+// # Stratification
+//
+// Split and Folds are stratified by class (for a multi-label set, by the
+// lowest-numbered class of the row, with rows of no class as a stratum of
+// their own), so that every part has close to the class shares of the
+// whole, which keeps rare classes present in each part (Kohavi, 1995,
+// recommends stratified cross-validation). Split takes ⌊h·n_c⌋ holdout
+// rows from class c and gives one more to the classes with the largest
+// fractional parts h·n_c − ⌊h·n_c⌋ until the total is round(h·n)
+// (the largest remainder method of apportionment, Hamilton, 1792), so each
+// class's holdout count is within one row of h·n_c; a class never gives up
+// its last training row. Folds shuffles each class, lays the classes end
+// to end and deals position p to fold p mod k. Both draw from
+// math/rand/v2's PCG (O'Neill, 2014) seeded by the caller, so the same seed
+// gives the same parts on every platform.
+//
+// References:
+//   - Y. Shafranovich (2005), RFC 4180, Common Format and MIME Type for
+//     Comma-Separated Values (CSV) Files.
+//   - T. F. Chan, G. H. Golub, R. J. LeVeque (1983), Algorithms for
+//     computing the sample variance: analysis and recommendations, The
+//     American Statistician 37(3).
+//   - R. Kohavi (1995), A study of cross-validation and bootstrap for
+//     accuracy estimation and model selection, IJCAI.
+//   - M. E. O'Neill (2014), PCG: a family of simple fast space-efficient
+//     statistically good algorithms for random number generation.
+package data

@@ -1,0 +1,126 @@
+package data
+
+import (
+	"fmt"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Set is a loaded data set: one row per example.
+type Set struct {
+	X          *mat.Dense // rows × features; nil only for a set of zero rows
+	Y          *mat.Dense // rows × len(Classes): one-hot (single-label) or multi-hot (multi-label); nil when the file had no label column or the set has zero rows
+	Classes    []string   // class names in the order of Y's columns
+	Features   []string   // feature names in the order of X's columns
+	Multilabel bool       // Y is multi-hot: a row may carry none, one or several classes
+	Lines      []int      // 1-based line in the file of each row (for messages); may be nil for derived sets
+}
+
+// Rows returns the number of rows.
+func (s *Set) Rows() int {
+	if s.X == nil {
+		return 0
+	}
+	r, _ := s.X.Dims()
+	return r
+}
+
+// Labels returns the class index of each row: the argmax of its row of Y
+// (the first maximum on ties). For a multi-label set it is the lowest
+// class index in the row's set, or −1 for a row with no class. It returns
+// nil when Y is nil.
+func (s *Set) Labels() []int {
+	if s.Y == nil {
+		return nil
+	}
+	r, c := s.Y.Dims()
+	out := make([]int, r)
+	for i := range r {
+		row := s.Y.RawRowView(i)
+		if s.Multilabel {
+			out[i] = -1
+			for j, v := range row {
+				if v != 0 {
+					out[i] = j
+					break
+				}
+			}
+			continue
+		}
+		best := 0
+		for j := 1; j < c; j++ {
+			if row[j] > row[best] {
+				best = j
+			}
+		}
+		out[i] = best
+	}
+	return out
+}
+
+// Counts returns the number of rows of each class: Y's column sums of
+// nonzero entries, so for a multi-label set a row counts once in each of
+// its classes. It returns nil when Y is nil.
+func (s *Set) Counts() []int {
+	if s.Y == nil {
+		return nil
+	}
+	r, c := s.Y.Dims()
+	out := make([]int, c)
+	if !s.Multilabel {
+		for _, k := range s.Labels() {
+			out[k]++
+		}
+		return out
+	}
+	for i := range r {
+		for j, v := range s.Y.RawRowView(i) {
+			if v != 0 {
+				out[j]++
+			}
+		}
+	}
+	return out
+}
+
+// Subset returns a new set holding copies of the given rows, in that order
+// (a row may repeat). Class and feature names are copied too. An index out
+// of range panics. An empty rows gives a set of zero rows with nil X and Y.
+func (s *Set) Subset(rows []int) *Set {
+	n := s.Rows()
+	for _, i := range rows {
+		if i < 0 || i >= n {
+			panic(fmt.Sprintf("data: Subset row %d out of range [0, %d)", i, n))
+		}
+	}
+	out := &Set{
+		Classes:    slices.Clone(s.Classes),
+		Features:   slices.Clone(s.Features),
+		Multilabel: s.Multilabel,
+	}
+	if len(rows) == 0 {
+		return out
+	}
+	out.X = pick(s.X, rows)
+	if s.Y != nil {
+		out.Y = pick(s.Y, rows)
+	}
+	if s.Lines != nil {
+		out.Lines = make([]int, len(rows))
+		for k, i := range rows {
+			out.Lines[k] = s.Lines[i]
+		}
+	}
+	return out
+}
+
+// pick copies the given rows of m into a new matrix.
+func pick(m *mat.Dense, rows []int) *mat.Dense {
+	_, c := m.Dims()
+	d := make([]float64, 0, len(rows)*c)
+	for _, i := range rows {
+		d = append(d, m.RawRowView(i)...)
+	}
+	return mat.NewDense(len(rows), c, d)
+}
