@@ -1,0 +1,204 @@
+package spec
+
+import (
+	"errors"
+	"io"
+	"math"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+func valid() *Network {
+	return &Network{
+		Version: 1, Inputs: 3,
+		Hidden: []Layer{{4, Tanh}},
+		Output: Output{Classes: []string{"a", "b"}, Activation: Softmax},
+		Init:   Init{Scheme: GlorotUniform, Seed: 1},
+	}
+}
+
+func TestValidate(t *testing.T) {
+	tests := []struct {
+		name   string
+		change func(n *Network)
+		fields []string // want these fields, in order; nil = valid
+		kinds  []error
+	}{
+		{"valid", func(*Network) {}, nil, nil},
+		{"no hidden", func(n *Network) { n.Hidden = nil }, nil, nil},
+		{"sigmoid two classes", func(n *Network) { n.Output.Activation = Sigmoid }, nil, nil},
+		{"multilabel one class", func(n *Network) {
+			n.Output = Output{Classes: []string{"x"}, Activation: Sigmoid, Multilabel: true}
+		}, nil, nil},
+		{"zero value", func(n *Network) { *n = Network{} },
+			[]string{"version", "inputs", "output.activation", "output.classes", "init.scheme"},
+			[]error{ErrVersion, ErrRange, ErrMissingField, ErrRange, ErrMissingField}},
+		{"features mismatch", func(n *Network) { n.Features = []string{"x", "y"} }, []string{"inputs"}, []error{ErrRange}},
+		{"features duplicate", func(n *Network) { n.Features = []string{"x", "y", "x"} }, []string{"inputs[2]"}, []error{ErrDuplicate}},
+		{"hidden zero activation", func(n *Network) { n.Hidden[0].Activation = 0 }, []string{"hidden[0].activation"}, []error{ErrMissingField}},
+		{"hidden bad activation", func(n *Network) { n.Hidden[0].Activation = 99 }, []string{"hidden[0].activation"}, []error{ErrRange}},
+		{"output relu", func(n *Network) { n.Output.Activation = ReLU }, []string{"output.activation"}, []error{ErrRange}},
+		{"scheme out of range", func(n *Network) { n.Init.Scheme = -1 }, []string{"init.scheme"}, []error{ErrRange}},
+		{"optimizer out of range", func(n *Network) { n.Train.Optimizer = 6 }, []string{"train.optimizer"}, []error{ErrRange}},
+		{"nan scale", func(n *Network) { n.Init.Scale = math.NaN() }, []string{"init.scale"}, []error{ErrRange}},
+		{"inf l2", func(n *Network) { n.Penalty.L2 = math.Inf(1) }, []string{"penalty.l2"}, []error{ErrRange}},
+		{"huge units", func(n *Network) { n.Hidden[0].Units = math.MaxInt }, []string{"hidden[0].units"}, []error{ErrTooLarge}},
+		{
+			// (MaxInt/2+1)·(k+1) would overflow int; each width alone is
+			// within an unbounded limit, so only the overflow-safe sum can
+			// catch it.
+			"overflowing count", func(n *Network) {
+				n.Inputs = 1 << 40
+				n.Hidden[0].Units = 1 << 40
+			}, []string{"hidden[0].units"}, []error{ErrTooLarge},
+		},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			n := valid()
+			tt.change(n)
+			lim := Limits{}
+			if tt.name == "overflowing count" {
+				lim.MaxParams = math.MaxInt
+			}
+			err := n.ValidateLimits(lim)
+			var got []*Error
+			switch e := err.(type) {
+			case nil:
+			case *Error:
+				got = []*Error{e}
+			case ErrorList:
+				got = e
+			default:
+				t.Fatalf("error of type %T: %v", err, err)
+			}
+			if len(got) != len(tt.fields) {
+				t.Fatalf("got %d problems, want %d: %v", len(got), len(tt.fields), err)
+			}
+			for i, e := range got {
+				if e.Field != tt.fields[i] || !errors.Is(e, tt.kinds[i]) || e.Line != 0 || e.Column != 0 {
+					t.Errorf("problem %d: got %q %v at %d:%d, want %q %v at 0:0", i, e.Field, e, e.Line, e.Column, tt.fields[i], tt.kinds[i])
+				}
+			}
+		})
+	}
+}
+
+func TestParamCheck(t *testing.T) {
+	// Sizes 3 → 4 → 2: (3+1)·4 + (4+1)·2 = 26 params.
+	n := valid()
+	if got := n.ParamCount(); got != 26 {
+		t.Fatalf("ParamCount = %d, want 26", got)
+	}
+	tests := []struct {
+		limit int
+		ok    bool
+		field string
+	}{
+		{26, true, ""},
+		{25, false, "output.classes"},
+		{16, false, "output.classes"},
+		{15, false, "hidden[0].units"},
+	}
+	for _, tt := range tests {
+		field, c, ok := paramCheck(n, tt.limit)
+		if ok != tt.ok || field != tt.field || (ok && c != 26) {
+			t.Errorf("limit %d: got %q, %d, %v; want %q, %v", tt.limit, field, c, ok, tt.field, tt.ok)
+		}
+	}
+}
+
+func TestLimits(t *testing.T) {
+	src := head + "hidden: [{units: 10, activation: relu}]\noutput: {units: 5}\n" // 3·10 + 11·5 = 85 params
+	tests := []struct {
+		name  string
+		lim   Limits
+		kind  error
+		field string
+	}{
+		{"defaults", Limits{}, nil, ""},
+		{"negative means default", Limits{MaxBytes: -1, MaxParams: -1, MaxClasses: -1}, nil, ""},
+		{"bytes exact", Limits{MaxBytes: int64(len(src))}, nil, ""},
+		{"bytes one short", Limits{MaxBytes: int64(len(src)) - 1}, ErrTooLarge, ""},
+		{"params exact", Limits{MaxParams: 85}, nil, ""},
+		{"params one short", Limits{MaxParams: 84}, ErrTooLarge, "output.units"},
+		{"classes exact", Limits{MaxClasses: 5}, nil, ""},
+		{"classes one short", Limits{MaxClasses: 4}, ErrTooLarge, "output.units"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			_, err := ParseLimits(strings.NewReader(src), tt.lim)
+			if !errors.Is(err, tt.kind) || (err == nil) != (tt.kind == nil) {
+				t.Fatalf("got %v, want %v", err, tt.kind)
+			}
+			var e *Error
+			if errors.As(err, &e) && e.Field != tt.field {
+				t.Errorf("field %q, want %q", e.Field, tt.field)
+			}
+		})
+	}
+}
+
+// countReader yields n bytes of a repeated spec line without holding them.
+type countReader struct {
+	n, read int64
+}
+
+func (r *countReader) Read(p []byte) (int, error) {
+	if r.read >= r.n {
+		return 0, io.EOF
+	}
+	const line = "# padding padding padding padding padding padding\n"
+	k := int64(len(p))
+	if k > r.n-r.read {
+		k = r.n - r.read
+	}
+	for i := int64(0); i < k; i++ {
+		p[i] = line[(r.read+i)%int64(len(line))]
+	}
+	r.read += k
+	return int(k), nil
+}
+
+func TestTooLargeFailsFast(t *testing.T) {
+	r := &countReader{n: 10 << 20}
+	_, err := Parse(r)
+	if !errors.Is(err, ErrTooLarge) {
+		t.Fatalf("got %v, want ErrTooLarge", err)
+	}
+	// Parse must stop after MaxBytes+1 bytes, not read all 10 MB.
+	if r.read != DefaultMaxBytes+1 {
+		t.Errorf("read %d bytes, want %d", r.read, DefaultMaxBytes+1)
+	}
+	if !strings.Contains(err.Error(), "larger than the limit of 1048576 bytes") {
+		t.Errorf("message %q", err)
+	}
+}
+
+type errReader struct{}
+
+func (errReader) Read([]byte) (int, error) { return 0, errors.New("boom") }
+
+func TestReadError(t *testing.T) {
+	_, err := Parse(errReader{})
+	if err == nil || !strings.Contains(err.Error(), "boom") {
+		t.Errorf("got %v, want the read error", err)
+	}
+}
+
+func TestClone(t *testing.T) {
+	n := valid()
+	n.Features = []string{"x", "y", "z"}
+	c := n.Clone()
+	if !reflect.DeepEqual(n, c) {
+		t.Fatalf("clone differs: %#v", c)
+	}
+	c.Features[0], c.Hidden[0].Units, c.Output.Classes[0] = "q", 99, "q"
+	if n.Features[0] != "x" || n.Hidden[0].Units != 4 || n.Output.Classes[0] != "a" {
+		t.Errorf("clone shares memory with the original: %#v", n)
+	}
+	if (*Network)(nil).Clone() != nil {
+		t.Error("Clone of nil is not nil")
+	}
+}
