@@ -59,7 +59,8 @@
 // fractional parts h·n_c − ⌊h·n_c⌋ until the total is round(h·n)
 // (the largest remainder method of apportionment, Hamilton, 1792), so each
 // class's holdout count is within one row of h·n_c; a class never gives up
-// its last training row. Folds shuffles each class, lays the classes end
+// its last training row (so with tiny classes the holdout may come out
+// smaller than round(h·n)). Folds shuffles each class, lays the classes end
 // to end and deals position p to fold p mod k. Both draw from
 // math/rand/v2's PCG (O'Neill, 2014) seeded by the caller, so the same seed
 // gives the same parts on every platform.
