@@ -28,19 +28,25 @@ type Net struct {
 
 // Compile checks s and returns its net. The net keeps its own copy of s.
 //
-// The checks are: Inputs ≥ 1; every hidden layer has Units ≥ 1 and a hidden
+// Compile first calls s.Validate (the spec package's checks, with its
+// default limits) and then checks again the invariants the engine relies
+// on: Inputs ≥ 1; every hidden layer has Units ≥ 1 and a hidden
 // activation (sigmoid, tanh, relu, leaky-relu, softplus, identity); the
 // output is softmax with ≥ 2 classes or sigmoid with ≥ 1 class; penalties are
 // finite and ≥ 0; the scheme is known and Uniform has a finite Scale > 0.
-// Errors wrap ErrSpec.
+// Errors wrap ErrSpec and, when Validate fails, its error too, so that
+// errors.As(err, new(*spec.Error)) works.
 func Compile(s *spec.Network) (*Net, error) {
 	if s == nil {
 		return nil, fmt.Errorf("%w: nil network", ErrSpec)
 	}
+	if err := s.Validate(); err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrSpec, err)
+	}
 	if err := check(s); err != nil {
 		return nil, err
 	}
-	c := copySpec(s)
+	c := s.Clone()
 	sizes := c.Sizes()
 	L := len(sizes) - 1
 	n := &Net{
@@ -120,17 +126,6 @@ func check(s *spec.Network) error {
 		return fmt.Errorf("%w: init: unknown scheme %v", ErrSpec, s.Init.Scheme)
 	}
 	return nil
-}
-
-func copySpec(s *spec.Network) *spec.Network {
-	c := *s
-	c.Features = append([]string(nil), s.Features...)
-	c.Hidden = append([]spec.Layer(nil), s.Hidden...)
-	c.Output.Classes = append([]string(nil), s.Output.Classes...)
-	if s.Features == nil {
-		c.Features = nil
-	}
-	return &c
 }
 
 // Spec returns the net's copy of its spec. The caller must not modify it.
