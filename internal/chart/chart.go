@@ -321,7 +321,7 @@ func (t logTicks) Ticks(lo, hi float64) []plot.Tick {
 				add(float64(m)*d, m == 1)
 			}
 		default:
-			add(d, (e-elo)%step == 0)
+			add(d, ((e%step)+step)%step == 0) // same decades whatever the range
 		}
 	}
 	return ticks
@@ -370,8 +370,9 @@ func (f fig) body(dc draw.Canvas) draw.Canvas {
 			Handler: plot.DefaultTextHandler,
 		}
 		dc.FillText(sty, vg.Point{X: dc.Center().X, Y: dc.Max.Y - pad}, f.title)
-		dc.Max.Y -= sty.Height(f.title) + 2*pad
+		dc.Max.Y -= sty.Height(f.title) + pad
 	}
+	dc.Max.Y -= pad
 	if len(f.entries) > 0 {
 		h := f.drawLegend(dc)
 		dc.Min.Y += h + pad

@@ -103,7 +103,7 @@ func ConfusionPlot(w io.Writer, f Format, title string, classes []string, counts
 	if long*n > 60 {
 		p.X.Tick.Label.Rotation = math.Pi / 4
 		p.X.Tick.Label.XAlign = draw.XRight
-		p.X.Tick.Label.YAlign = draw.YCenter
+		p.X.Tick.Label.YAlign = draw.YTop
 	}
 
 	// Scale panel: a single column of the ramp against the share.
