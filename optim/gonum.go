@@ -197,4 +197,3 @@ func (m *Gonum) finish(r *runner) {
 	}
 	m.live = false
 }
-

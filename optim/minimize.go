@@ -97,22 +97,7 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 	if err != nil {
 		return Result{}, err
 	}
-	n := len(x0)
-	r := &runner{
-		ctx:       ctx,
-		obj:       f,
-		lim:       lim,
-		start:     time.Now(),
-		x:         slices.Clone(x0),
-		g:         make([]float64, n),
-		f:         math.NaN(),
-		gnorm:     math.NaN(),
-		best:      make([]float64, n),
-		bestF:     math.NaN(),
-		bestGNorm: math.NaN(),
-		atStart:   true,
-		trace:     make([]Step, 0, min(lim.Iterations, 1024)),
-	}
+	r := newRunner(ctx, f, x0, lim)
 	st, err := m.init(r)
 	if err != nil {
 		return Result{}, err
@@ -175,6 +160,26 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 		return res, r.err
 	}
 	return res, nil
+}
+
+// newRunner sets up the state of a run from checked input.
+func newRunner(ctx context.Context, f Objective, x0 []float64, lim Limits) *runner {
+	n := len(x0)
+	return &runner{
+		ctx:       ctx,
+		obj:       f,
+		lim:       lim,
+		start:     time.Now(),
+		x:         slices.Clone(x0),
+		g:         make([]float64, n),
+		f:         math.NaN(),
+		gnorm:     math.NaN(),
+		best:      make([]float64, n),
+		bestF:     math.NaN(),
+		bestGNorm: math.NaN(),
+		atStart:   true,
+		trace:     make([]Step, 0, min(lim.Iterations, 1024)),
+	}
 }
 
 // updateBest records the current point as the best one when it is.
