@@ -114,3 +114,12 @@ func relErr(g, ref []float64, floor float64) float64 {
 	}
 	return d / math.Max(floor, maxAbs(ref))
 }
+
+// oneHot returns m one-hot rows over k classes.
+func oneHot(rng *rand.Rand, m, k int) *mat.Dense {
+	y := mat.NewDense(m, k, nil)
+	for i := 0; i < m; i++ {
+		y.Set(i, rng.IntN(k), 1)
+	}
+	return y
+}
