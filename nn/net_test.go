@@ -200,3 +200,13 @@ func TestObjectiveErrors(t *testing.T) {
 		t.Errorf("err = %#v, want a ValueError at x[1, 2]", err)
 	}
 }
+
+// TestFLOPs checks the count documented on FLOPs for a 4-8-3 net:
+// predict = (2·4·8 + 2·8) + (2·8·3 + 2·3) = 80 + 54 = 134;
+// evaluate = 134 + (2·4·8 + 8) + (2·8·3 + 3) + (2·8·3 + 2·8) = 134 + 72 + 51 + 64 = 321.
+func TestFLOPs(t *testing.T) {
+	n := mustCompile(t, testSpec(4, []int{8}, spec.Sigmoid, outSoftmax))
+	if p, e := n.FLOPs(); p != 134 || e != 321 {
+		t.Errorf("FLOPs() = %g, %g; want 134, 321", p, e)
+	}
+}

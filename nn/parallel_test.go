@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"testing"
+	"time"
 
 	"github.com/seine-ml/seine/spec"
 )
@@ -178,4 +179,31 @@ func TestBatchesAverage(t *testing.T) {
 	if same {
 		t.Errorf("Shuffle(3) and Shuffle(4) gave the same order")
 	}
+}
+
+// TestWorkersStop: the worker goroutines of an Objective end once the
+// Objective is garbage collected.
+func TestWorkersStop(t *testing.T) {
+	before := runtime.NumGoroutine()
+	func() {
+		rng := rand.New(rand.NewPCG(7, 7))
+		n := mustCompile(t, testSpec(3, []int{4}, spec.Tanh, outSoftmax))
+		x, y := testData(rng, 40, 3, outSoftmax, false)
+		o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: 4, Workers: 4})
+		if err != nil {
+			t.Fatal(err)
+		}
+		o.Eval(nil, n.NewParams())
+		if g := runtime.NumGoroutine(); g < before+3 {
+			t.Fatalf("%d goroutines after a parallel Eval, want ≥ %d", g, before+3)
+		}
+	}()
+	for range 100 {
+		runtime.GC()
+		if runtime.NumGoroutine() <= before {
+			return
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	t.Errorf("%d goroutines remain, %d before", runtime.NumGoroutine(), before)
 }
