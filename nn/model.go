@@ -1,0 +1,290 @@
+package nn
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sync"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/spec"
+)
+
+// Model is a trained net ready to answer queries: the spec, the params, the
+// input scaling fitted on the training rows, the class and feature names and
+// a summary of how it was trained.
+//
+// A Model is safe for concurrent use by many goroutines once built: its
+// prediction methods only read the params and take their scratch space from
+// an internal pool, so a single-row prediction allocates nothing after
+// warm-up. Do not modify the exported fields after the first prediction.
+//
+// Inputs are raw features in the order of Features: the model applies its
+// own scaling, x' = (x − Mean)/Scale, before the forward pass.
+type Model struct {
+	Spec     *spec.Network
+	Params   []float64
+	Mean     []float64 // per-feature centre; nil = no scaling
+	Scale    []float64 // per-feature divisor; nil = no scaling
+	Classes  []string
+	Features []string
+	Summary  Summary
+
+	net  *Net
+	pool sync.Pool // *rowScratch
+}
+
+// Summary records how a model was trained. Figures that do not apply are
+// zero (counts) or NaN (costs and accuracies are written as null).
+type Summary struct {
+	Method          string  `json:"method"`
+	Iterations      int     `json:"iterations"`
+	Evaluations     float64 `json:"evaluations"`
+	Seconds         float64 `json:"seconds"`
+	Status          string  `json:"status"`
+	Cost            float64 `json:"cost"`             // final training cost, with penalty
+	TrainRows       int     `json:"train_rows"`       //
+	TrainAccuracy   float64 `json:"train_accuracy"`   // share of training rows classified right
+	HoldoutRows     int     `json:"holdout_rows"`     // 0 when no holdout was used
+	HoldoutCost     float64 `json:"holdout_cost"`     // mean cross-entropy on the holdout
+	HoldoutAccuracy float64 `json:"holdout_accuracy"` //
+	Seed            uint64  `json:"seed"`             // initialisation seed
+	Library         string  `json:"library"`          // seine version that trained it
+}
+
+// Version is the library version written into model summaries.
+const Version = "0.1.0"
+
+// rowScratch is the per-call space of a single-row prediction.
+type rowScratch struct {
+	ws  *Workspace
+	in  []float64 // scaled input
+	out []float64 // output units
+}
+
+// ErrModel is wrapped by errors about a model's contents.
+var ErrModel = errors.New("nn: invalid model")
+
+// NewModel checks the parts of a model against each other and returns it
+// ready for prediction. params is used as is (not copied). mean and scale may
+// both be nil (no scaling) or both have one entry per input. classes and
+// features may be nil, meaning the spec's.
+func NewModel(s *spec.Network, params, mean, scale []float64, classes, features []string) (*Model, error) {
+	m := &Model{Spec: s, Params: params, Mean: mean, Scale: scale, Classes: classes, Features: features}
+	if err := m.init(); err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// init compiles the net and checks every part; it is the one place where a
+// model, built in Go or read from a file, becomes usable.
+func (m *Model) init() error {
+	if m.Spec == nil {
+		return fmt.Errorf("%w: no spec", ErrModel)
+	}
+	net, err := Compile(m.Spec)
+	if err != nil {
+		return fmt.Errorf("%w: %w", ErrModel, err)
+	}
+	if len(m.Params) != net.NumParams() {
+		return fmt.Errorf("%w: %d params, the spec needs %d", ErrModel, len(m.Params), net.NumParams())
+	}
+	for i, v := range m.Params {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("%w: param %d is %v", ErrModel, i, v)
+		}
+	}
+	if (m.Mean == nil) != (m.Scale == nil) {
+		return fmt.Errorf("%w: scaler has mean without scale or scale without mean", ErrModel)
+	}
+	if m.Mean != nil {
+		if len(m.Mean) != net.Inputs() || len(m.Scale) != net.Inputs() {
+			return fmt.Errorf("%w: scaler has %d means and %d scales for %d inputs", ErrModel, len(m.Mean), len(m.Scale), net.Inputs())
+		}
+		for i := range m.Mean {
+			if !finite(m.Mean[i]) || !finite(m.Scale[i]) || m.Scale[i] == 0 {
+				return fmt.Errorf("%w: scaler entry %d (mean %v, scale %v) must be finite with a non-zero scale", ErrModel, i, m.Mean[i], m.Scale[i])
+			}
+		}
+	}
+	if m.Classes == nil {
+		m.Classes = m.Spec.Output.Classes
+	}
+	if len(m.Classes) != len(m.Spec.Output.Classes) {
+		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.Classes), len(m.Spec.Output.Classes))
+	}
+	if m.Features == nil {
+		m.Features = m.Spec.Features
+	}
+	if m.Features != nil && len(m.Features) != net.Inputs() {
+		return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.Features), net.Inputs())
+	}
+	m.net = net
+	m.pool.New = func() any {
+		return &rowScratch{ws: net.NewWorkspace(1), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs())}
+	}
+	return nil
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// Net returns the compiled net of m.
+func (m *Model) Net() *Net { return m.net }
+
+// Inputs returns the number of raw features a row must have.
+func (m *Model) Inputs() int { return m.net.Inputs() }
+
+// NumClasses returns the number of classes.
+func (m *Model) NumClasses() int { return len(m.Classes) }
+
+// Multilabel reports whether a row may carry several classes.
+func (m *Model) Multilabel() bool { return m.Spec.Output.Multilabel }
+
+// scale writes the scaled x into dst.
+func (m *Model) scale(dst, x []float64) {
+	if m.Mean == nil {
+		copy(dst, x)
+		return
+	}
+	for i, v := range x {
+		dst[i] = (v - m.Mean[i]) / m.Scale[i]
+	}
+}
+
+// outputs runs one row through the net and writes the class probabilities
+// into dst (len NumClasses). For the binary sigmoid net the one unit is the
+// probability p of Classes[1], and dst = [1−p, p].
+func (m *Model) outputs(dst, x []float64) {
+	if len(x) != m.net.Inputs() {
+		panic(fmt.Sprintf("nn: row has %d features, the model takes %d", len(x), m.net.Inputs()))
+	}
+	sc := m.pool.Get().(*rowScratch)
+	m.scale(sc.in, x)
+	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	if len(sc.out) == 1 && len(dst) == 2 {
+		dst[0], dst[1] = 1-sc.out[0], sc.out[0]
+	} else {
+		copy(dst, sc.out)
+	}
+	m.pool.Put(sc)
+}
+
+// Probabilities writes the probability of each class for the raw feature row
+// x into dst and returns it; dst is allocated when it is nil or too short.
+// For softmax outputs the entries sum to 1; for sigmoid outputs each entry is
+// the independent probability of its class. It panics if len(x) is not
+// Inputs(): check rows from outside the program first.
+func (m *Model) Probabilities(dst, x []float64) []float64 {
+	k := len(m.Classes)
+	if cap(dst) < k {
+		dst = make([]float64, k)
+	}
+	dst = dst[:k]
+	m.outputs(dst, x)
+	return dst
+}
+
+// Predict returns the index in Classes of the most probable class of the raw
+// feature row x (the first one on a tie). It allocates nothing after warm-up.
+func (m *Model) Predict(x []float64) int {
+	var buf [16]float64
+	p := buf[:0]
+	if k := len(m.Classes); k <= len(buf) {
+		p = buf[:k]
+	} else {
+		p = make([]float64, k)
+	}
+	m.outputs(p, x)
+	return argmax(p)
+}
+
+func argmax(p []float64) int {
+	best := 0
+	for i, v := range p {
+		if v > p[best] {
+			best = i
+		}
+	}
+	return best
+}
+
+// Labels appends to dst the indices of the classes whose probability is at
+// least threshold, in class order, and returns it. It is meant for
+// multi-label models; for a softmax model it returns the classes above the
+// threshold just the same. A threshold of 0.5 is the usual choice.
+func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
+	var buf [16]float64
+	p := buf[:0]
+	if k := len(m.Classes); k <= len(buf) {
+		p = buf[:k]
+	} else {
+		p = make([]float64, k)
+	}
+	m.outputs(p, x)
+	for i, v := range p {
+		if v >= threshold {
+			dst = append(dst, i)
+		}
+	}
+	return dst
+}
+
+// ProbabilitiesBatch writes the class probabilities of each raw row of x
+// into the rows of dst, which must be r × NumClasses for r = rows of x, or
+// empty (then it is sized). The rows are processed in blocks of the net's
+// batch workspace.
+func (m *Model) ProbabilitiesBatch(dst *mat.Dense, x mat.Matrix) {
+	r, c := x.Dims()
+	if c != m.net.Inputs() {
+		panic(fmt.Sprintf("nn: rows have %d features, the model takes %d", c, m.net.Inputs()))
+	}
+	k := len(m.Classes)
+	if dst.IsEmpty() {
+		dst.ReuseAs(r, k)
+	} else if dr, dc := dst.Dims(); dr != r || dc != k {
+		panic("nn: ProbabilitiesBatch: dst has the wrong shape")
+	}
+	const block = 512
+	ws := m.net.NewWorkspace(block)
+	in := mat.NewDense(block, c, nil)
+	for start := 0; start < r; start += block {
+		end := min(start+block, r)
+		n := end - start
+		sub := in.Slice(0, n, 0, c).(*mat.Dense)
+		for i := 0; i < n; i++ {
+			row := sub.RawRowView(i)
+			for j := range row {
+				row[j] = x.At(start+i, j)
+			}
+			m.scale(row, row)
+		}
+		out := m.net.Forward(ws, m.Params, sub)
+		for i := 0; i < n; i++ {
+			o := out.RawRowView(i)
+			d := dst.RawRowView(start + i)
+			if len(o) == 1 && k == 2 {
+				d[0], d[1] = 1-o[0], o[0]
+			} else {
+				copy(d, o)
+			}
+		}
+	}
+}
+
+// PredictBatch writes the most probable class of each raw row of x into dst
+// (len = rows of x) and returns it; dst is allocated when it is too short.
+func (m *Model) PredictBatch(dst []int, x mat.Matrix) []int {
+	r, _ := x.Dims()
+	if cap(dst) < r {
+		dst = make([]int, r)
+	}
+	dst = dst[:r]
+	var p mat.Dense
+	m.ProbabilitiesBatch(&p, x)
+	for i := range dst {
+		dst[i] = argmax(p.RawRowView(i))
+	}
+	return dst
+}

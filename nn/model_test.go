@@ -1,0 +1,256 @@
+package nn
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"testing/fstest"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/spec"
+)
+
+// testModel builds a small model with scaling: 3 inputs, one tanh layer of
+// 4, softmax over 3 classes, params from the spec's initialisation.
+func testModel(t testing.TB, out spec.Activation, classes []string, multilabel bool) *Model {
+	t.Helper()
+	s := &spec.Network{
+		Version: 1, Name: "t", Inputs: 3, Features: []string{"a", "b", "c"},
+		Hidden:  []spec.Layer{{Units: 4, Activation: spec.Tanh}},
+		Output:  spec.Output{Classes: classes, Activation: out, Multilabel: multilabel},
+		Init:    spec.Init{Scheme: spec.GlorotUniform, Seed: 3},
+	}
+	net, err := Compile(s)
+	require.NoError(t, err)
+	p := net.NewParams()
+	for i := range p {
+		p[i] *= 3 // make the outputs far from uniform
+	}
+	m, err := NewModel(s, p, []float64{1, -2, 0.5}, []float64{2, 0.5, 3}, nil, nil)
+	require.NoError(t, err)
+	return m
+}
+
+func rows() [][]float64 {
+	return [][]float64{{0, 0, 0}, {1, -2, 0.5}, {3.5, 1e3, -7}, {-1e-3, 2, 9}}
+}
+
+func TestModelRoundTripBitIdentical(t *testing.T) {
+	for _, m := range []*Model{
+		testModel(t, spec.Softmax, []string{"x", "y", "z"}, false),
+		testModel(t, spec.Sigmoid, []string{"no", "yes"}, false),
+		testModel(t, spec.Sigmoid, []string{"p", "q", "r"}, true),
+	} {
+		m.Summary = Summary{Method: "lbfgs", Iterations: 3, Cost: 0.25, HoldoutCost: math.NaN(), Library: Version}
+		var buf bytes.Buffer
+		_, err := m.WriteTo(&buf)
+		require.NoError(t, err)
+		got, err := ReadModel(&buf)
+		require.NoError(t, err)
+		require.Equal(t, len(m.Params), len(got.Params))
+		for i := range m.Params {
+			require.Equal(t, math.Float64bits(m.Params[i]), math.Float64bits(got.Params[i]), "param %d", i)
+		}
+		assert.Equal(t, m.Mean, got.Mean)
+		assert.Equal(t, m.Scale, got.Scale)
+		assert.Equal(t, m.Classes, got.Classes)
+		assert.Equal(t, m.Features, got.Features)
+		assert.True(t, math.IsNaN(got.Summary.HoldoutCost))
+		assert.Equal(t, 0.25, got.Summary.Cost)
+		for _, x := range rows() {
+			a, b := m.Probabilities(nil, x), got.Probabilities(nil, x)
+			for k := range a {
+				require.Equal(t, math.Float64bits(a[k]), math.Float64bits(b[k]))
+			}
+		}
+	}
+}
+
+func TestModelProbabilities(t *testing.T) {
+	soft := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
+	bin := testModel(t, spec.Sigmoid, []string{"no", "yes"}, false)
+	for _, x := range rows() {
+		p := soft.Probabilities(nil, x)
+		assert.InDelta(t, 1, p[0]+p[1]+p[2], 1e-15)
+		assert.Equal(t, argmax(p), soft.Predict(x))
+		q := bin.Probabilities(nil, x)
+		require.Len(t, q, 2)
+		assert.InDelta(t, 1, q[0]+q[1], 1e-15)
+	}
+	// The batch forms agree with the row forms to the last bit: the same
+	// forward pass over the same scaled values.
+	x := mat.NewDense(4, 3, nil)
+	for i, r := range rows() {
+		x.SetRow(i, r)
+	}
+	var pb mat.Dense
+	soft.ProbabilitiesBatch(&pb, x)
+	pred := soft.PredictBatch(nil, x)
+	for i, r := range rows() {
+		p := soft.Probabilities(nil, r)
+		for k := range p {
+			assert.InDelta(t, p[k], pb.At(i, k), 1e-15)
+		}
+		assert.Equal(t, soft.Predict(r), pred[i])
+	}
+	ml := testModel(t, spec.Sigmoid, []string{"p", "q", "r"}, true)
+	for _, r := range rows() {
+		p := ml.Probabilities(nil, r)
+		var want []int
+		for k, v := range p {
+			if v >= 0.5 {
+				want = append(want, k)
+			}
+		}
+		assert.Equal(t, want, ml.Labels(nil, r, 0.5))
+	}
+}
+
+func TestPredictAllocatesNothing(t *testing.T) {
+	m := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
+	x := []float64{1, 2, 3}
+	dst := make([]float64, 3)
+	m.Predict(x)
+	if n := testing.AllocsPerRun(200, func() { m.Predict(x) }); n != 0 {
+		t.Errorf("Predict allocates %v times per call, want 0", n)
+	}
+	if n := testing.AllocsPerRun(200, func() { m.Probabilities(dst, x) }); n != 0 {
+		t.Errorf("Probabilities allocates %v times per call, want 0", n)
+	}
+}
+
+// Many goroutines share one model; every answer equals the sequential one.
+func TestModelConcurrent(t *testing.T) {
+	m := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
+	want := make([][]float64, len(rows()))
+	for i, r := range rows() {
+		want[i] = m.Probabilities(nil, r)
+	}
+	var wg sync.WaitGroup
+	errs := make(chan string, 64)
+	for g := 0; g < 64; g++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			dst := make([]float64, 3)
+			for n := 0; n < 200; n++ {
+				i := (g + n) % len(want)
+				m.Probabilities(dst, rows()[i])
+				for k := range dst {
+					if dst[k] != want[i][k] {
+						errs <- "mismatch"
+						return
+					}
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for e := range errs {
+		t.Fatal(e)
+	}
+}
+
+func encoded(t *testing.T, m *Model) map[string]any {
+	t.Helper()
+	var buf bytes.Buffer
+	_, err := m.WriteTo(&buf)
+	require.NoError(t, err)
+	var doc map[string]any
+	require.NoError(t, json.Unmarshal(buf.Bytes(), &doc))
+	return doc
+}
+
+func TestReadModelRejects(t *testing.T) {
+	m := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
+	var good bytes.Buffer
+	_, err := m.WriteTo(&good)
+	require.NoError(t, err)
+	edit := func(f func(doc map[string]any)) string {
+		doc := encoded(t, m)
+		f(doc)
+		b, err := json.Marshal(doc)
+		require.NoError(t, err)
+		return string(b)
+	}
+	params := func(doc map[string]any) map[string]any { return doc["params"].(map[string]any) }
+	flipped := []byte(good.String())
+	i := bytes.Index(flipped, []byte(`"data": "`)) + 12
+	flipped[i] ^= 0x01
+	tests := []struct {
+		name, in string
+		want     error
+		msg      string
+	}{
+		{"empty", "", ErrFormat, ""},
+		{"not json", "hello", ErrFormat, "line 1"},
+		{"array", "[1,2]", ErrFormat, ""},
+		{"truncated", good.String()[:good.Len()/2], ErrFormat, ""},
+		{"wrong format", edit(func(d map[string]any) { d["format"] = "other" }), ErrFormat, `"other"`},
+		{"future version", edit(func(d map[string]any) { d["version"] = 2 }), ErrVersion, "version 2"},
+		{"checksum", edit(func(d map[string]any) { params(d)["sha256"] = strings.Repeat("0", 64) }), ErrChecksum, ""},
+		{"flipped byte", string(flipped), ErrChecksum, ""},
+		{"count lies", edit(func(d map[string]any) { params(d)["count"] = 7 }), ErrModel, "count 7"},
+		{"unknown key", edit(func(d map[string]any) { d["extra"] = 1 }), ErrFormat, "extra"},
+		{"duplicate key", strings.Replace(good.String(), `"version": 1,`, `"version": 1, "version": 1,`, 1), ErrFormat, "duplicate key"},
+		{"bad spec", edit(func(d map[string]any) { d["spec"] = "version: 1\ninputs: 0\n" }), ErrModel, "inputs"},
+		{"scaler length", edit(func(d map[string]any) { d["scaler"] = map[string]any{"mean": []float64{1}, "scale": []float64{1}} }), ErrModel, "scaler"},
+		{"zero scale", edit(func(d map[string]any) {
+			d["scaler"] = map[string]any{"mean": []float64{1, 2, 3}, "scale": []float64{1, 0, 1}}
+		}), ErrModel, "scale"},
+		{"nested bomb", strings.Repeat("[", 100000) + strings.Repeat("]", 100000), ErrFormat, ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			_, err := ReadModel(strings.NewReader(tt.in))
+			require.Error(t, err)
+			assert.True(t, errors.Is(err, tt.want), "got %v", err)
+			assert.Contains(t, err.Error(), tt.msg)
+		})
+	}
+	_, err = ReadModelLimit(strings.NewReader(good.String()), 100)
+	assert.ErrorIs(t, err, ErrTooLarge)
+}
+
+func TestSaveAndLoad(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "m.seine.json")
+	m := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
+	require.NoError(t, m.Save(path))
+	got, err := Load(path)
+	require.NoError(t, err)
+	assert.Equal(t, m.Params, got.Params)
+	before, err := os.ReadFile(path)
+	require.NoError(t, err)
+
+	// A failed save leaves the old file intact and no temporary file behind.
+	bad := &Model{Spec: m.Spec, Params: []float64{1}}
+	require.Error(t, bad.Save(path))
+	after, err := os.ReadFile(path)
+	require.NoError(t, err)
+	assert.Equal(t, before, after)
+	entries, err := os.ReadDir(dir)
+	require.NoError(t, err)
+	assert.Len(t, entries, 1)
+
+	// A folder that does not exist: an error, nothing written.
+	assert.Error(t, m.Save(filepath.Join(dir, "missing", "m.json")))
+
+	// Loading from an fs.FS (an embed.FS works the same way).
+	fsys := fstest.MapFS{"models/m.seine.json": {Data: before}}
+	fm, err := LoadFS(fsys, "models/m.seine.json")
+	require.NoError(t, err)
+	assert.Equal(t, m.Params, fm.Params)
+	_, err = LoadFS(fsys, "nope.json")
+	assert.Error(t, err)
+}

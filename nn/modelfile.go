@@ -1,0 +1,396 @@
+package nn
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/base64"
+	"encoding/binary"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/seine-ml/seine/spec"
+)
+
+// The model file is one JSON document (RFC 8259) of this shape:
+//
+//	{
+//	  "format":   "seine-model",
+//	  "version":  1,
+//	  "spec":     "<the spec as canonical YAML text>",
+//	  "classes":  ["human", …],
+//	  "features": ["req_per_min", …] or null,
+//	  "scaler":   {"mean": […], "scale": […]} or null,
+//	  "summary":  {…},
+//	  "params":   {"count": P, "encoding": "float64-le-base64",
+//	               "sha256": "<hex of the SHA-256 of the raw bytes>",
+//	               "data": "<base64 of P little-endian IEEE 754 doubles>"}
+//	}
+//
+// The params are stored as raw bits so that they round-trip bit for bit;
+// the scaler's numbers are written in the shortest form that reads back to
+// the same float64 (strconv 'g', -1), which also round-trips exactly.
+// Object keys must be unique: a duplicate key anywhere is an error (RFC 8259
+// §4 leaves their meaning to the reader; this one refuses to guess).
+const (
+	FormatName    = "seine-model"
+	FormatVersion = 1
+	paramEncoding = "float64-le-base64"
+)
+
+// DefaultMaxModelBytes is the size limit of ReadModel.
+const DefaultMaxModelBytes = 256 << 20
+
+// Errors of reading a model file; each is wrapped with detail.
+var (
+	ErrFormat   = errors.New("nn: not a seine model file")
+	ErrVersion  = errors.New("nn: unsupported model format version")
+	ErrChecksum = errors.New("nn: params checksum mismatch")
+	ErrTooLarge = errors.New("nn: model file too large")
+)
+
+type fileModel struct {
+	Format   string      `json:"format"`
+	Version  int         `json:"version"`
+	Spec     string      `json:"spec"`
+	Classes  []string    `json:"classes"`
+	Features []string    `json:"features"`
+	Scaler   *fileScaler `json:"scaler"`
+	Summary  fileSummary `json:"summary"`
+	Params   fileParams  `json:"params"`
+}
+
+type fileScaler struct {
+	Mean  []float64 `json:"mean"`
+	Scale []float64 `json:"scale"`
+}
+
+type fileParams struct {
+	Count    int    `json:"count"`
+	Encoding string `json:"encoding"`
+	SHA256   string `json:"sha256"`
+	Data     string `json:"data"`
+}
+
+// fileSummary is Summary with NaN written as null.
+type fileSummary struct {
+	Method          string   `json:"method"`
+	Iterations      int      `json:"iterations"`
+	Evaluations     float64  `json:"evaluations"`
+	Seconds         float64  `json:"seconds"`
+	Status          string   `json:"status"`
+	Cost            *float64 `json:"cost"`
+	TrainRows       int      `json:"train_rows"`
+	TrainAccuracy   *float64 `json:"train_accuracy"`
+	HoldoutRows     int      `json:"holdout_rows"`
+	HoldoutCost     *float64 `json:"holdout_cost"`
+	HoldoutAccuracy *float64 `json:"holdout_accuracy"`
+	Seed            uint64   `json:"seed"`
+	Library         string   `json:"library"`
+}
+
+func nullable(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+func fromNullable(p *float64) float64 {
+	if p == nil {
+		return math.NaN()
+	}
+	return *p
+}
+
+// WriteTo writes m as a model file to w. It implements io.WriterTo.
+func (m *Model) WriteTo(w io.Writer) (int64, error) {
+	if m.net == nil {
+		if err := m.init(); err != nil {
+			return 0, err
+		}
+	}
+	var y bytes.Buffer
+	if err := m.Spec.WriteYAML(&y); err != nil {
+		return 0, fmt.Errorf("nn: writing model spec: %w", err)
+	}
+	raw := make([]byte, 8*len(m.Params))
+	for i, v := range m.Params {
+		binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(v))
+	}
+	sum := sha256.Sum256(raw)
+	f := fileModel{
+		Format: FormatName, Version: FormatVersion, Spec: y.String(),
+		Classes: m.Classes, Features: m.Features,
+		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, SHA256: hex.EncodeToString(sum[:]), Data: base64.StdEncoding.EncodeToString(raw)},
+	}
+	if m.Mean != nil {
+		f.Scaler = &fileScaler{Mean: m.Mean, Scale: m.Scale}
+	}
+	s := m.Summary
+	f.Summary = fileSummary{
+		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status,
+		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
+		HoldoutRows: s.HoldoutRows, HoldoutCost: nullable(s.HoldoutCost), HoldoutAccuracy: nullable(s.HoldoutAccuracy),
+		Seed: s.Seed, Library: s.Library,
+	}
+	if !finite(f.Summary.Evaluations) {
+		f.Summary.Evaluations = 0
+	}
+	if !finite(f.Summary.Seconds) {
+		f.Summary.Seconds = 0
+	}
+	b, err := json.MarshalIndent(f, "", "  ")
+	if err != nil {
+		return 0, fmt.Errorf("nn: encoding model: %w", err)
+	}
+	b = append(b, '\n')
+	n, err := w.Write(b)
+	return int64(n), err
+}
+
+// ReadModel reads a model file written by WriteTo, refusing files larger
+// than DefaultMaxModelBytes.
+func ReadModel(r io.Reader) (*Model, error) { return ReadModelLimit(r, DefaultMaxModelBytes) }
+
+// ReadModelLimit reads a model file of at most maxBytes bytes (0 means
+// DefaultMaxModelBytes). The limit is checked while reading, before the file
+// is held in memory whole. It rejects a wrong format name, a newer version, a
+// duplicate key, a checksum mismatch, a params count that does not match the
+// spec and non-finite params, each with an error that wraps ErrFormat,
+// ErrVersion, ErrChecksum, ErrTooLarge or ErrModel.
+func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
+	if maxBytes <= 0 {
+		maxBytes = DefaultMaxModelBytes
+	}
+	b, err := io.ReadAll(io.LimitReader(r, maxBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("nn: reading model: %w", err)
+	}
+	if int64(len(b)) > maxBytes {
+		return nil, fmt.Errorf("%w: more than %d bytes", ErrTooLarge, maxBytes)
+	}
+	if err := checkJSON(b); err != nil {
+		return nil, err
+	}
+	var f fileModel
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&f); err != nil {
+		return nil, fmt.Errorf("%w: %s", ErrFormat, jsonErr(b, err))
+	}
+	if f.Format != FormatName {
+		return nil, fmt.Errorf("%w: format is %q, want %q", ErrFormat, f.Format, FormatName)
+	}
+	if f.Version < 1 || f.Version > FormatVersion {
+		return nil, fmt.Errorf("%w: file has version %d, this library reads 1 to %d", ErrVersion, f.Version, FormatVersion)
+	}
+	s, err := spec.Parse(strings.NewReader(f.Spec))
+	if err != nil {
+		return nil, fmt.Errorf("%w: its spec: %w", ErrModel, err)
+	}
+	p := f.Params
+	if p.Encoding != paramEncoding {
+		return nil, fmt.Errorf("%w: params encoding %q, want %q", ErrFormat, p.Encoding, paramEncoding)
+	}
+	if want := s.ParamCount(); p.Count != want {
+		return nil, fmt.Errorf("%w: params count %d, the spec needs %d", ErrModel, p.Count, want)
+	}
+	raw, err := base64.StdEncoding.DecodeString(p.Data)
+	if err != nil {
+		return nil, fmt.Errorf("%w: params data: %w", ErrFormat, err)
+	}
+	if len(raw) != 8*p.Count {
+		return nil, fmt.Errorf("%w: params data holds %d bytes, count %d needs %d", ErrModel, len(raw), p.Count, 8*p.Count)
+	}
+	sum := sha256.Sum256(raw)
+	if hex.EncodeToString(sum[:]) != strings.ToLower(p.SHA256) {
+		return nil, fmt.Errorf("%w: the params data does not match its sha256", ErrChecksum)
+	}
+	params := make([]float64, p.Count)
+	for i := range params {
+		params[i] = math.Float64frombits(binary.LittleEndian.Uint64(raw[8*i:]))
+	}
+	m := &Model{Spec: s, Params: params, Classes: f.Classes, Features: f.Features}
+	if f.Scaler != nil {
+		m.Mean, m.Scale = f.Scaler.Mean, f.Scaler.Scale
+		if m.Mean == nil || m.Scale == nil {
+			return nil, fmt.Errorf("%w: scaler needs both mean and scale", ErrModel)
+		}
+	}
+	fs := f.Summary
+	m.Summary = Summary{
+		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: fs.Status,
+		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
+		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),
+		Seed: fs.Seed, Library: fs.Library,
+	}
+	if err := m.init(); err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// checkJSON scans the document once for syntax and duplicate object keys,
+// reporting the byte offset of a problem.
+func checkJSON(b []byte) error {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber()
+	type frame struct {
+		obj  bool
+		keys map[string]bool
+		key  bool // next string token is a key
+	}
+	var stack []frame
+	first := true
+	for {
+		tok, err := dec.Token()
+		if err == io.EOF {
+			if first || len(stack) != 0 {
+				return fmt.Errorf("%w: unexpected end of file", ErrFormat)
+			}
+			return nil
+		}
+		if err != nil {
+			return fmt.Errorf("%w: %s", ErrFormat, jsonErr(b, err))
+		}
+		if first {
+			if d, ok := tok.(json.Delim); !ok || d != '{' {
+				return fmt.Errorf("%w: the document is not a JSON object", ErrFormat)
+			}
+			first = false
+		} else if len(stack) == 0 {
+			return fmt.Errorf("%w: data after the end of the document", ErrFormat)
+		}
+		top := len(stack) - 1
+		switch t := tok.(type) {
+		case json.Delim:
+			switch t {
+			case '{':
+				if top >= 0 && stack[top].obj {
+					stack[top].key = true
+				}
+				stack = append(stack, frame{obj: true, keys: map[string]bool{}, key: true})
+			case '[':
+				if top >= 0 && stack[top].obj {
+					stack[top].key = true
+				}
+				stack = append(stack, frame{})
+			default:
+				stack = stack[:top]
+			}
+		case string:
+			if top >= 0 && stack[top].obj && stack[top].key {
+				if stack[top].keys[t] {
+					return fmt.Errorf("%w: duplicate key %q near byte %d", ErrFormat, t, dec.InputOffset())
+				}
+				stack[top].keys[t] = true
+				stack[top].key = false
+				continue
+			}
+			if top >= 0 && stack[top].obj {
+				stack[top].key = true
+			}
+		default:
+			if top >= 0 && stack[top].obj {
+				stack[top].key = true
+			}
+		}
+	}
+}
+
+// jsonErr adds the line and column to a JSON decoding error.
+func jsonErr(b []byte, err error) string {
+	var off int64 = -1
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		off = se.Offset
+	case errors.As(err, &te):
+		off = te.Offset
+	}
+	if off < 0 || off > int64(len(b)) {
+		return err.Error()
+	}
+	line := 1 + bytes.Count(b[:off], []byte{'\n'})
+	col := int(off) - bytes.LastIndexByte(b[:off], '\n')
+	return fmt.Sprintf("line %d, column %d: %v", line, col, err)
+}
+
+// Save writes m to the file at path without ever leaving a half-written or
+// lost model: it writes a temporary file in the same folder, syncs it, and
+// renames it over path. On any failure the old file at path is untouched.
+func (m *Model) Save(path string) (err error) {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("nn: saving model: %w", err)
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	if err = tmp.Chmod(0o644); err != nil {
+		return fmt.Errorf("nn: saving model: %w", err)
+	}
+	if _, err = m.WriteTo(tmp); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if err = tmp.Sync(); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if err = tmp.Close(); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if err = os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if d, derr := os.Open(dir); derr == nil {
+		d.Sync() // make the rename durable; not all systems support it
+		d.Close()
+	}
+	return nil
+}
+
+// Load reads the model file at path.
+func Load(path string) (*Model, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("nn: %w", err)
+	}
+	defer f.Close()
+	m, err := ReadModel(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return m, nil
+}
+
+// LoadFS reads the model file name from fsys. With an embed.FS this loads
+// a model compiled into the program:
+//
+//	//go:embed triage.seine.json
+//	var files embed.FS
+//	model, err := nn.LoadFS(files, "triage.seine.json")
+func LoadFS(fsys fs.FS, name string) (*Model, error) {
+	f, err := fsys.Open(name)
+	if err != nil {
+		return nil, fmt.Errorf("nn: %w", err)
+	}
+	defer f.Close()
+	m, err := ReadModel(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return m, nil
+}
