@@ -1,0 +1,350 @@
+// Package train turns a spec and a data set into a model: it fits the
+// scaler on the training rows only, builds the cost objective of the net
+// (full batch, or mini-batches for momentum and Adam), runs an optim method
+// with the caller's context, limits and observer, measures the holdout rows
+// after every iteration when a holdout is given, and can keep the params
+// with the lowest holdout cost (early stopping with patience; Prechelt 1998
+// discusses the criterion).
+package train
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"time"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/optim"
+	"github.com/seine-ml/seine/score"
+	"github.com/seine-ml/seine/spec"
+)
+
+// Config sets a training run. Its zero value trains with the spec's `train:`
+// defaults, standardised features and no holdout.
+type Config struct {
+	// Method is the optimizer; nil means the one the spec names, or
+	// L-BFGS when it names none (see MethodFor).
+	Method optim.Method
+	// Limits stop the run. A zero Iterations takes the spec's iterations
+	// (then optim's default); a zero GradTol the spec's tolerance (then
+	// optim's default). Limits.Observer is called after Progress.
+	Limits optim.Limits
+	// Batch is the mini-batch size in rows for momentum and Adam; 0 takes
+	// the spec's batch, and a spec batch of 0 means all rows.
+	Batch int
+	// Holdout rows are scored after every iteration; nil means none.
+	Holdout *data.Set
+	// KeepBest returns the params with the lowest holdout cost seen rather
+	// than the last ones. It needs Holdout.
+	KeepBest bool
+	// Patience stops the run after this many iterations without a lower
+	// holdout cost; 0 means never. It needs Holdout.
+	Patience int
+	// NoScale leaves the features as they are instead of standardising them.
+	NoScale bool
+	// Start is the initial params (copied); nil means the spec's
+	// initialisation with Seed.
+	Start []float64
+	// Seed overrides the spec's init seed when non-zero; it also seeds the
+	// mini-batch shuffles of momentum and Adam chosen from the spec.
+	Seed uint64
+	// Workers bounds the goroutines of one evaluation; 0 means GOMAXPROCS.
+	// Results are bit-identical whatever it is.
+	Workers int
+	// Progress, when non-nil, is called after every iteration; returning
+	// true stops the run.
+	Progress func(Progress) (stop bool)
+}
+
+// Progress is the record of one iteration, with the holdout figures (NaN
+// without a holdout).
+type Progress struct {
+	optim.Step
+	HoldoutCost     float64
+	HoldoutAccuracy float64
+}
+
+// Result is the outcome of a training run.
+type Result struct {
+	Model    *nn.Model
+	Run      optim.Result // the optimizer's own result (Run.X is the final point)
+	Trace    []Progress   // one entry per iteration
+	Warnings []string     // e.g. constant feature columns
+	BestIter int          // iteration whose params the model holds (KeepBest), else the last
+}
+
+// ErrConfig is wrapped by errors in a Config or in how it fits the data.
+var ErrConfig = errors.New("train: bad configuration")
+
+// MethodFor returns the optim method that a spec's optimizer name stands
+// for, with the learning rate set where the method has one (0 keeps the
+// method's default) and the mini-batch shuffles seeded. GD with rate 0 uses
+// a backtracking line search.
+func MethodFor(o spec.Optimizer, rate float64, seed uint64) (optim.Method, error) {
+	switch o {
+	case spec.GD:
+		return &optim.GradientDescent{Step: rate}, nil
+	case spec.CG:
+		return &optim.ConjugateGradient{}, nil
+	case 0, spec.LBFGS:
+		return &optim.LBFGS{}, nil
+	case spec.Momentum:
+		return &optim.Momentum{Rate: rate, Seed: seed}, nil
+	case spec.Adam:
+		return &optim.Adam{Rate: rate, Seed: seed}, nil
+	}
+	return nil, fmt.Errorf("%w: unknown optimizer %v", ErrConfig, o)
+}
+
+// Prepare fits the scaler on set (unless noScale) and returns the scaled
+// copies of its features and of the holdout's, with the scaler's warnings.
+// A nil scaler means no scaling.
+func Prepare(set, holdout *data.Set, noScale bool) (x, hx *mat.Dense, sc *data.Scaler, warn []string) {
+	x = mat.DenseCopyOf(set.X)
+	if holdout != nil {
+		hx = mat.DenseCopyOf(holdout.X)
+	}
+	if noScale {
+		return x, hx, nil, nil
+	}
+	sc, warn = data.FitScaler(set.X)
+	sc.Transform(x, x)
+	if hx != nil {
+		sc.Transform(hx, hx)
+	}
+	return x, hx, sc, warn
+}
+
+// Train fits the net that s describes to the rows of set.
+//
+// On a run that ends early (cancelled, diverged, a failed line search) it
+// returns the best model it has together with an error wrapping the cause,
+// so that a caller can still save the last good params: check Result.Model
+// before giving up. The model never holds non-finite params.
+func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Result, error) {
+	if s == nil || set == nil {
+		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
+	}
+	net, err := nn.Compile(s)
+	if err != nil {
+		return nil, err
+	}
+	if err := checkSet(net, s, set, "training"); err != nil {
+		return nil, err
+	}
+	if cfg.Holdout != nil {
+		if err := checkSet(net, s, cfg.Holdout, "holdout"); err != nil {
+			return nil, err
+		}
+	} else if cfg.KeepBest || cfg.Patience > 0 {
+		return nil, fmt.Errorf("%w: keeping the best params or patience needs a holdout", ErrConfig)
+	}
+	if cfg.Patience < 0 || cfg.Batch < 0 || cfg.Workers < 0 {
+		return nil, fmt.Errorf("%w: patience, batch and workers must not be negative", ErrConfig)
+	}
+	seed := s.Init.Seed
+	if cfg.Seed != 0 {
+		seed = cfg.Seed
+	}
+	method := cfg.Method
+	if method == nil {
+		if method, err = MethodFor(s.Train.Optimizer, s.Train.Rate, seed); err != nil {
+			return nil, err
+		}
+	}
+	lim := cfg.Limits
+	if lim.Iterations == 0 {
+		lim.Iterations = s.Train.Iterations
+	}
+	if lim.GradTol == 0 {
+		lim.GradTol = s.Train.Tolerance
+	}
+	batch := cfg.Batch
+	if batch == 0 {
+		batch = s.Train.Batch
+	}
+
+	x, hx, sc, warn := Prepare(set, cfg.Holdout, cfg.NoScale)
+	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers})
+	if err != nil {
+		return nil, fmt.Errorf("train: training rows: %w", err)
+	}
+	var hold *holdout
+	if cfg.Holdout != nil {
+		if hold, err = newHoldout(net, hx, cfg.Holdout, cfg.Workers); err != nil {
+			return nil, err
+		}
+	}
+
+	x0 := cfg.Start
+	if x0 == nil {
+		x0 = make([]float64, net.NumParams())
+		net.Init(x0, seed)
+	} else if len(x0) != net.NumParams() {
+		return nil, fmt.Errorf("%w: start has %d params, the net has %d", ErrConfig, len(x0), net.NumParams())
+	}
+
+	res := &Result{BestIter: -1, Warnings: warn}
+	var best []float64
+	bestCost := math.Inf(1)
+	sinceBest := 0
+	userObs := lim.Observer
+	lim.Observer = func(st optim.Step, xk []float64) bool {
+		p := Progress{Step: st, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
+		stop := false
+		if hold != nil {
+			p.HoldoutCost, p.HoldoutAccuracy = hold.measure(xk)
+			if p.HoldoutCost < bestCost {
+				bestCost, sinceBest, res.BestIter = p.HoldoutCost, 0, st.Iter
+				if cfg.KeepBest {
+					best = append(best[:0], xk...)
+				}
+			} else {
+				sinceBest++
+				if cfg.Patience > 0 && sinceBest >= cfg.Patience {
+					stop = true
+				}
+			}
+		}
+		res.Trace = append(res.Trace, p)
+		if cfg.Progress != nil && cfg.Progress(p) {
+			stop = true
+		}
+		if userObs != nil && userObs(st, xk) {
+			stop = true
+		}
+		return stop
+	}
+	start := time.Now()
+	run, runErr := optim.Minimize(ctx, obj, x0, method, lim)
+	res.Run = run
+	if run.X == nil {
+		return nil, fmt.Errorf("train: %w", runErr)
+	}
+	params := run.X
+	if cfg.KeepBest && best != nil {
+		params = best
+	} else {
+		res.BestIter = run.Iterations
+	}
+	for i, v := range params {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("train: param %d is %v after %s: refusing to build a model: %w", i, v, run.Status, runErr)
+		}
+	}
+	var mean, scale []float64
+	if sc != nil {
+		mean, scale = sc.Mean, sc.Scale
+	}
+	model, err := nn.NewModel(s, params, mean, scale, set.Classes, set.Features)
+	if err != nil {
+		return nil, err
+	}
+	model.Summary = nn.Summary{
+		Method:      methodName(method),
+		Iterations:  run.Iterations,
+		Evaluations: run.Evaluations,
+		Seconds:     time.Since(start).Seconds(),
+		Status:      run.Status.String(),
+		Cost:        obj.Eval(nil, params),
+		TrainRows:   set.Rows(),
+		Seed:        seed,
+		Library:     nn.Version,
+	}
+	model.Summary.TrainAccuracy = accuracy(net, params, x, set)
+	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
+	if hold != nil {
+		model.Summary.HoldoutRows = cfg.Holdout.Rows()
+		model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = hold.measure(params)
+	}
+	res.Model = model
+	if runErr != nil {
+		return res, fmt.Errorf("train: %w", runErr)
+	}
+	return res, nil
+}
+
+// methodName gives the spec name of the known methods.
+func methodName(m optim.Method) string {
+	switch m.(type) {
+	case *optim.GradientDescent:
+		return "gd"
+	case *optim.ConjugateGradient:
+		return "cg"
+	case *optim.LBFGS:
+		return "lbfgs"
+	case *optim.Momentum:
+		return "momentum"
+	case *optim.Adam:
+		return "adam"
+	}
+	return fmt.Sprintf("%T", m)
+}
+
+// checkSet reports a data set that does not fit the net.
+func checkSet(net *nn.Net, s *spec.Network, set *data.Set, what string) error {
+	if set.Rows() == 0 {
+		return fmt.Errorf("%w: the %s set has no rows", ErrConfig, what)
+	}
+	if _, c := set.X.Dims(); c != net.Inputs() {
+		return fmt.Errorf("%w: the %s set has %d feature columns, the spec %d inputs", ErrConfig, what, c, net.Inputs())
+	}
+	if set.Y == nil {
+		return fmt.Errorf("%w: the %s set has no labels", ErrConfig, what)
+	}
+	if _, c := set.Y.Dims(); c != len(s.Output.Classes) {
+		return fmt.Errorf("%w: the %s set has %d classes, the spec %d", ErrConfig, what, c, len(s.Output.Classes))
+	}
+	if set.Multilabel != s.Output.Multilabel {
+		return fmt.Errorf("%w: the %s set is multi-label=%v, the spec multilabel=%v", ErrConfig, what, set.Multilabel, s.Output.Multilabel)
+	}
+	return nil
+}
+
+// holdout scores params on the holdout rows.
+type holdout struct {
+	net   *nn.Net
+	obj   *nn.Objective
+	x     *mat.Dense
+	set   *data.Set
+	ws    *nn.Workspace
+	probs *mat.Dense
+}
+
+func newHoldout(net *nn.Net, hx *mat.Dense, set *data.Set, workers int) (*holdout, error) {
+	obj, err := nn.NewObjective(net, hx, set.Y, nn.ObjectiveOptions{Workers: workers})
+	if err != nil {
+		return nil, fmt.Errorf("train: holdout rows: %w", err)
+	}
+	return &holdout{net: net, obj: obj, x: hx, set: set, ws: net.NewWorkspace(set.Rows())}, nil
+}
+
+// measure returns the mean cross-entropy and the accuracy of params on the
+// holdout rows.
+func (h *holdout) measure(params []float64) (cost, acc float64) {
+	return h.obj.Loss(params), accuracyWS(h.net, h.ws, params, h.x, h.set)
+}
+
+func accuracy(net *nn.Net, params []float64, x *mat.Dense, set *data.Set) float64 {
+	return accuracyWS(net, net.NewWorkspace(set.Rows()), params, x, set)
+}
+
+func accuracyWS(net *nn.Net, ws *nn.Workspace, params []float64, x *mat.Dense, set *data.Set) float64 {
+	out := net.Forward(ws, params, x)
+	if _, c := out.Dims(); c == 1 {
+		// Binary sigmoid: the unit is the probability of class 1.
+		m, _ := out.Dims()
+		correct := 0
+		for i := 0; i < m; i++ {
+			if (out.At(i, 0) >= 0.5) == (set.Y.At(i, 1) > 0.5) {
+				correct++
+			}
+		}
+		return float64(correct) / float64(m)
+	}
+	return score.Accuracy(out, set.Y, set.Multilabel)
+}
