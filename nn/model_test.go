@@ -25,9 +25,9 @@ func testModel(t testing.TB, out spec.Activation, classes []string, multilabel b
 	t.Helper()
 	s := &spec.Network{
 		Version: 1, Name: "t", Inputs: 3, Features: []string{"a", "b", "c"},
-		Hidden:  []spec.Layer{{Units: 4, Activation: spec.Tanh}},
-		Output:  spec.Output{Classes: classes, Activation: out, Multilabel: multilabel},
-		Init:    spec.Init{Scheme: spec.GlorotUniform, Seed: 3},
+		Hidden: []spec.Layer{{Units: 4, Activation: spec.Tanh}},
+		Output: spec.Output{Classes: classes, Activation: out, Multilabel: multilabel},
+		Init:   spec.Init{Scheme: spec.GlorotUniform, Seed: 3},
 	}
 	net, err := Compile(s)
 	require.NoError(t, err)
