@@ -1,0 +1,187 @@
+// Command seine trains, checks and uses small neural-network classifiers
+// described by YAML specs.
+//
+// Usage:
+//
+//	seine <command> [flags]
+//	seine help [command]
+//
+// The commands are train, evaluate, predict, gradient-check, inspect,
+// compare, sweep and curve; `seine help COMMAND` describes each. Exit status
+// is 0 on success, 1 when the work fails (bad data, bad spec, divergence)
+// and 2 on bad usage. Messages go to standard error and name the file, the
+// line or row, and the field.
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"sort"
+	"strings"
+	"syscall"
+)
+
+// command is one subcommand of the tool.
+type command struct {
+	name    string
+	args    string // synopsis of the flags
+	summary string // one line
+	// run does the work. It returns a *usageError for bad usage (exit 2) and
+	// any other error for a failure of the work (exit 1).
+	run func(ctx context.Context, e *env, args []string) error
+}
+
+// env is what a command may touch of the outside world; tests replace it.
+type env struct {
+	stdin          io.Reader
+	stdout, stderr io.Writer
+	// terminal reports whether stderr is an interactive terminal (progress
+	// bars) rather than a file or pipe (plain lines).
+	terminal bool
+}
+
+// usageError is bad usage: a wrong flag, a missing argument.
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
+
+var commands = []*command{
+	{name: "train", args: "-spec FILE -data FILE -out FILE [flags]", summary: "train a model on CSV data and save it", run: runTrain},
+	{name: "evaluate", args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
+	{name: "predict", args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
+	{name: "gradient-check", args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
+	{name: "inspect", args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
+	{name: "compare", args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
+	{name: "sweep", args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
+	{name: "curve", args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
+}
+
+func lookup(name string) *command {
+	for _, c := range commands {
+		if c.name == name {
+			return c
+		}
+	}
+	return nil
+}
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	e := &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, terminal: isTerminal(os.Stderr)}
+	code := run(ctx, e, os.Args[1:])
+	stop()
+	os.Exit(code)
+}
+
+// run executes the command line args and returns the exit status.
+func run(ctx context.Context, e *env, args []string) int {
+	if len(args) == 0 {
+		topUsage(e.stderr)
+		return 2
+	}
+	name := args[0]
+	if name == "help" || name == "-h" || name == "-help" || name == "--help" {
+		if len(args) > 1 {
+			c := lookup(args[1])
+			if c == nil {
+				fmt.Fprintf(e.stderr, "seine help: unknown command %q\n", args[1])
+				return 2
+			}
+			c.run(ctx, &env{stdout: e.stdout, stderr: e.stdout}, []string{"-h"})
+			return 0
+		}
+		topUsage(e.stdout)
+		return 0
+	}
+	c := lookup(name)
+	if c == nil {
+		fmt.Fprintf(e.stderr, "seine: unknown command %q (commands: %s; see 'seine help')\n", name, names())
+		return 2
+	}
+	err := c.run(ctx, e, args[1:])
+	var ue *usageError
+	switch {
+	case err == nil:
+		return 0
+	case errors.Is(err, flag.ErrHelp):
+		return 0
+	case errors.As(err, &ue):
+		fmt.Fprintf(e.stderr, "seine %s: %v (see 'seine help %s')\n", c.name, oneLine(err), c.name)
+		return 2
+	default:
+		fmt.Fprintf(e.stderr, "seine %s: %v\n", c.name, oneLine(err))
+		return 1
+	}
+}
+
+// oneLine folds a multi-line error (a list of spec problems) so that each
+// problem still reads on its own line, indented under the first.
+func oneLine(err error) string {
+	return strings.ReplaceAll(strings.TrimRight(err.Error(), "\n"), "\n", "\n  ")
+}
+
+func names() string {
+	n := make([]string, len(commands))
+	for i, c := range commands {
+		n[i] = c.name
+	}
+	sort.Strings(n)
+	return strings.Join(n, ", ")
+}
+
+func topUsage(w io.Writer) {
+	fmt.Fprintln(w, "seine trains, checks and uses small neural-network classifiers described by YAML specs.")
+	fmt.Fprintln(w, "\nUsage:\n  seine <command> [flags]\n  seine help <command>\n\nCommands:")
+	for _, c := range commands {
+		fmt.Fprintf(w, "  %-15s %s\n", c.name, c.summary)
+	}
+	fmt.Fprintln(w, "\nExit status: 0 success, 1 the work failed, 2 bad usage.")
+}
+
+// newFlags returns a flag set for command c. Parse errors come back from
+// parseFlags as usage errors; -h prints the command's help to standard
+// output and ends the command with status 0.
+func newFlags(c string, e *env) *flag.FlagSet {
+	fs := flag.NewFlagSet("seine "+c, flag.ContinueOnError)
+	fs.SetOutput(e.stdout)
+	cmd := lookup(c)
+	fs.Usage = func() {
+		fmt.Fprintf(fs.Output(), "Usage: seine %s %s\n\n%s.\n\nFlags:\n", c, cmd.args, upperFirst(cmd.summary))
+		fs.PrintDefaults()
+	}
+	return fs
+}
+
+func upperFirst(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// parseFlags parses args into fs and turns flag's errors into usage errors.
+// Extra positional arguments are a usage error.
+func parseFlags(fs *flag.FlagSet, args []string) error {
+	out := fs.Output()
+	fs.SetOutput(io.Discard)
+	err := fs.Parse(args)
+	fs.SetOutput(out)
+	if errors.Is(err, flag.ErrHelp) {
+		fs.Usage()
+		return flag.ErrHelp
+	}
+	if err != nil {
+		return usagef("%v", err)
+	}
+	if fs.NArg() > 0 {
+		return usagef("unexpected argument %q", fs.Arg(0))
+	}
+	return nil
+}
