@@ -466,7 +466,7 @@ func (p *parser) number(n *yaml.Node, field, want string) (any, bool) {
 	}
 	var v any
 	if err := s.Decode(&v); err != nil {
-		p.errorf(n, field, ErrType, "want %s, got %s", want, describe(n))
+		p.errorf(n, field, ErrType, "want %s, got %q tagged %s", want, truncate(s.Value), s.ShortTag())
 		return nil, false
 	}
 	return v, true

@@ -130,6 +130,12 @@ var badTests = []badTest{
 	{"l2 string", head + "output: {units: 2}\npenalty: {l2: lots}\n", 4, 15, "penalty.l2", ErrType, `want a number, got "lots"`},
 	{"tagged int", head + "output: {units: !!str 2}\n", 3, 17, "output.units", ErrType, `want an integer, got "2"`},
 	{"key is a list", head + "output: {units: 2}\n[a]: 1\n", 4, 1, "?", ErrType, "want a key name"},
+	{"seed fraction", head + "output: {units: 2}\ninit: {seed: 1.5}\n", 4, 14, "init.seed", ErrType, "want an integer ≥ 0, got number 1.5"},
+	{"seed 2^64", head + "output: {units: 2}\ninit: {seed: 18446744073709551616}\n", 4, 14, "init.seed", ErrRange, "integer 18446744073709551616 is too large"},
+	{"rate tagged non-number", head + "output: {units: 2}\ntrain: {rate: !!float abc}\n", 4, 15, "train.rate", ErrType, `want a number, got "abc" tagged !!float`},
+	{"rate boolean", head + "output: {units: 2}\ntrain: {rate: true}\n", 4, 15, "train.rate", ErrType, "want a number, got true"},
+	{"custom tag", head + "output: {units: !x 2}\n", 3, 17, "output.units", ErrType, `want an integer, got !x "2"`},
+	{"long unknown key", head + "output: {units: 2}\n" + strings.Repeat("k", 60) + ": 1\n", 4, 1, strings.Repeat("k", 60), ErrUnknownField, `"` + strings.Repeat("k", 37) + `..."`},
 	{"penalty list", head + "output: {units: 2}\npenalty: [1]\n", 4, 10, "penalty", ErrType, "want a mapping, got a list"},
 
 	// Names.
