@@ -187,7 +187,7 @@ func (m *Gonum) doneStatus() Status {
 // method, closes the results and waits until the method closes its
 // operations.
 func (m *Gonum) finish(r *runner) {
-	if !m.live {
+	if m == nil || !m.live {
 		return
 	}
 	m.hasPending = false

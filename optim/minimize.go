@@ -98,6 +98,9 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 		return Result{}, err
 	}
 	r := newRunner(ctx, f, x0, lim)
+	if fin, ok := m.(finisher); ok {
+		defer fin.finish(r)
+	}
 	st, err := m.init(r)
 	if err != nil {
 		return Result{}, err
@@ -139,9 +142,6 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 			break
 		}
 		st = r.checkAfter(prevF)
-	}
-	if fin, ok := m.(finisher); ok {
-		fin.finish(r)
 	}
 	res := Result{
 		X:           r.best,
