@@ -113,7 +113,7 @@ type Network struct {
 	Name     string   // free text; may be empty
 	Inputs   int      // number of input features, ≥ 1
 	Features []string // input feature names when the spec lists them (len = Inputs), else nil
-	Hidden   []Layer  // hidden layers, input side first; may be empty
+	Hidden   []Layer  // hidden layers, input side first; nil when there are none (Parse never returns an empty non-nil slice)
 	Output   Output
 	Penalty  Penalty
 	Init     Init
@@ -156,7 +156,7 @@ type Penalty struct {
 type Init struct {
 	Scheme Scheme
 	Scale  float64 // half-width for Uniform; > 0 there, ignored otherwise
-	Seed   uint64
+	Seed   uint64  // seed of the random draw; Parse sets 1 when the spec has none
 }
 
 // Train holds optional training defaults; a zero field is "not set".
