@@ -16,7 +16,6 @@
 //	Momentum           v ← βv − η∇f_k(x or x + βv), x ← x + v, per mini-batch
 //	Adam               bias-corrected first and second moment estimates, per mini-batch
 //	Gonum              any gonum optimize.Method under the same accounting
-//	                   (built with -tags gonumoptimize, see gonum.go)
 //
 // The strong Wolfe line search (Nocedal & Wright 2006, algorithms 3.5 and
 // 3.6) is shared by CG and L-BFGS with c₁ = 1e-4 and c₂ = 0.1 (CG) or 0.9

@@ -1,5 +1,3 @@
-//go:build gonumoptimize
-
 package optim
 
 import (

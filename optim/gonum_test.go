@@ -1,5 +1,3 @@
-//go:build gonumoptimize
-
 package optim
 
 import (
@@ -67,7 +65,7 @@ func TestGonum(t *testing.T) {
 
 // TestMGHTable prints the evaluation counts of benchmarks/README.md:
 //
-//	SEINE_MGH_TABLE=1 go test -tags gonumoptimize ./optim -run TestMGHTable -v
+//	SEINE_MGH_TABLE=1 go test ./optim -run TestMGHTable -v
 func TestMGHTable(t *testing.T) {
 	if os.Getenv("SEINE_MGH_TABLE") == "" {
 		t.Skip("set SEINE_MGH_TABLE=1 to print the table")
