@@ -238,8 +238,14 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	return m, nil
 }
 
+// maxJSONDepth bounds the nesting of arrays and objects in a model file.
+// The format itself nests three deep; the bound stops a document of nested
+// brackets (a "JSON bomb") before the scan's stack grows with the file.
+const maxJSONDepth = 32
+
 // checkJSON scans the document once for syntax and duplicate object keys,
-// reporting the byte offset of a problem.
+// reporting the byte offset of a problem. It refuses nesting deeper than
+// maxJSONDepth.
 func checkJSON(b []byte) error {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.UseNumber()
@@ -272,6 +278,9 @@ func checkJSON(b []byte) error {
 		top := len(stack) - 1
 		switch t := tok.(type) {
 		case json.Delim:
+			if (t == '{' || t == '[') && len(stack) >= maxJSONDepth {
+				return fmt.Errorf("%w: nesting deeper than %d levels near byte %d", ErrFormat, maxJSONDepth, dec.InputOffset())
+			}
 			switch t {
 			case '{':
 				if top >= 0 && stack[top].obj {
