@@ -1,9 +1,12 @@
 package main
 
 import (
+	"bufio"
 	"errors"
 	"fmt"
+	"io"
 	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/seine-ml/seine/data"
@@ -19,7 +22,7 @@ func loadSpec(path string) (*spec.Network, error) {
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, err
+		return nil, openError("spec", err)
 	}
 	defer f.Close()
 	s, err := spec.Parse(f)
@@ -69,7 +72,7 @@ func loadData(path string, opt data.CSVOptions) (*data.Set, error) {
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, err
+		return nil, openError("data", err)
 	}
 	defer f.Close()
 	set, err := data.ReadCSV(f, opt)
@@ -91,9 +94,86 @@ func loadModel(path string) (*nn.Model, error) {
 	if err != nil {
 		var pe *os.PathError
 		if errors.As(err, &pe) {
-			return nil, pe
+			return nil, openError("model", pe)
 		}
 		return nil, err
 	}
 	return m, nil
+}
+
+// openError says which input file could not be opened and why, in one line:
+// "model file m.seine.json: no such file or directory".
+func openError(what string, err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return fmt.Errorf("%s file %s: %w", what, pe.Path, pe.Err)
+	}
+	return err
+}
+
+// writeAtomic writes a file at path through write without ever leaving a
+// half-written file or losing the old one: it writes a temporary file in the
+// same folder and renames it over path only when write and the close
+// succeeded. On failure the temporary file is removed and path is untouched.
+func writeAtomic(path string, write func(w io.Writer) error) (err error) {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	if err = tmp.Chmod(0o644); err != nil {
+		return err
+	}
+	bw := bufio.NewWriter(tmp)
+	if err = write(bw); err != nil {
+		return err
+	}
+	if err = bw.Flush(); err != nil {
+		return err
+	}
+	if err = tmp.Close(); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
+}
+
+// checkWritable reports early whether a file can be created beside path, so
+// that a long run does not fail only at its end. It leaves nothing behind.
+func checkWritable(flagName, path string) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".probe-*")
+	if err != nil {
+		return fmt.Errorf("%s %s: cannot write there: %w", flagName, path, errors.Unwrap(err))
+	}
+	tmp.Close()
+	os.Remove(tmp.Name())
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		return fmt.Errorf("%s %s: is a folder, want a file name", flagName, path)
+	}
+	return nil
+}
+
+// sameFile reports whether the paths a and b name one existing file.
+func sameFile(a, b string) bool {
+	sa, err := os.Stat(a)
+	if err != nil {
+		return false
+	}
+	sb, err := os.Stat(b)
+	return err == nil && os.SameFile(sa, sb)
+}
+
+// refuseOverwrite returns a usage error when the output path outFlag=out
+// names one of the inputs, which writing would destroy.
+func refuseOverwrite(outFlag, out string, inputs ...string) error {
+	for i := 0; i+1 < len(inputs); i += 2 {
+		if inputs[i+1] != "" && sameFile(out, inputs[i+1]) {
+			return usagef("%s %s is the %s file; refusing to overwrite it", outFlag, out, inputs[i])
+		}
+	}
+	return nil
 }

@@ -52,19 +52,24 @@ func (e *usageError) Error() string { return e.msg }
 
 func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
 
-var commands = []*command{
-	{name: "train", args: "-spec FILE -data FILE -out FILE [flags]", summary: "train a model on CSV data and save it", run: runTrain},
-	{name: "evaluate", args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
-	{name: "predict", args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
-	{name: "gradient-check", args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
-	{name: "inspect", args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
-	{name: "compare", args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
-	{name: "sweep", args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
-	{name: "curve", args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
+// commandList returns the command table. It is a function rather than a
+// package variable because the commands' run functions call newFlags, which
+// looks the table up: a variable would depend on itself.
+func commandList() []*command {
+	return []*command{
+		{name: "train", args: "-spec FILE -data FILE -out FILE [flags]", summary: "train a model on CSV data and save it", run: runTrain},
+		{name: "evaluate", args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
+		{name: "predict", args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
+		{name: "gradient-check", args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
+		{name: "inspect", args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
+		{name: "compare", args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
+		{name: "sweep", args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
+		{name: "curve", args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
+	}
 }
 
 func lookup(name string) *command {
-	for _, c := range commands {
+	for _, c := range commandList() {
 		if c.name == name {
 			return c
 		}
@@ -128,8 +133,9 @@ func oneLine(err error) string {
 }
 
 func names() string {
-	n := make([]string, len(commands))
-	for i, c := range commands {
+	cs := commandList()
+	n := make([]string, len(cs))
+	for i, c := range cs {
 		n[i] = c.name
 	}
 	sort.Strings(n)
@@ -139,7 +145,7 @@ func names() string {
 func topUsage(w io.Writer) {
 	fmt.Fprintln(w, "seine trains, checks and uses small neural-network classifiers described by YAML specs.")
 	fmt.Fprintln(w, "\nUsage:\n  seine <command> [flags]\n  seine help <command>\n\nCommands:")
-	for _, c := range commands {
+	for _, c := range commandList() {
 		fmt.Fprintf(w, "  %-15s %s\n", c.name, c.summary)
 	}
 	fmt.Fprintln(w, "\nExit status: 0 success, 1 the work failed, 2 bad usage.")

@@ -10,8 +10,6 @@ import (
 
 var errNotYet = errors.New("not available yet")
 
-func runTrain(ctx context.Context, e *env, args []string) error         { return errNotYet }
-func runEvaluate(ctx context.Context, e *env, args []string) error      { return errNotYet }
 func runPredict(ctx context.Context, e *env, args []string) error       { return errNotYet }
 func runGradientCheck(ctx context.Context, e *env, args []string) error { return errNotYet }
 func runInspect(ctx context.Context, e *env, args []string) error       { return errNotYet }

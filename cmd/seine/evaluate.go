@@ -1,0 +1,201 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/internal/chart"
+	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/score"
+)
+
+const evaluateHelp = `The data file's feature columns are picked by the model's feature names
+when it has them (else it must have the model's number of feature columns
+besides the label), and its labels must be among the model's classes.
+
+The text report gives the headline figures, one line per class (rows that
+truly carry the class, rows the model assigned to it, precision, recall,
+F1) and, for single-label models, the confusion matrix with true classes
+down the side and predicted classes across. -json writes the same figures
+as one JSON object instead: rows, accuracy, cross_entropy, macro_f1,
+classes, confusion (rows = true class), per_class (class, rows, predicted,
+precision, recall, f1) and, for multi-label models, hamming_loss and
+threshold.
+
+For multi-label models accuracy is the share of rows whose whole set of
+classes is right, each class is scored as its own yes/no question, and
+-threshold (default 0.5) is the probability at or above which a class
+counts as present.
+`
+
+func runEvaluate(ctx context.Context, e *env, args []string) error {
+	fs := newFlags("evaluate", e)
+	modelPath := fs.String("model", "", "model `FILE` written by seine train")
+	dataPath := fs.String("data", "", "labelled CSV `FILE` with a header row")
+	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
+	asJSON := fs.Bool("json", false, "write the report as one JSON object")
+	plot := fs.String("plot", "", "also draw the confusion matrix to `FILE`.png or FILE.svg")
+	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class counts as present (default 0.5)")
+	usage := fs.Usage
+	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+evaluateHelp) }
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if *modelPath == "" {
+		return usagef("-model is required")
+	}
+	if *dataPath == "" {
+		return usagef("-data is required")
+	}
+	if *threshold != 0 && !(*threshold > 0 && *threshold < 1) {
+		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
+	}
+	var format chart.Format
+	if *plot != "" {
+		var err error
+		if format, err = chart.FormatOf(*plot); err != nil {
+			return usagef("-plot %s: want a file name ending in .png or .svg", *plot)
+		}
+		if err := refuseOverwrite("-plot", *plot, "model", *modelPath, "data", *dataPath); err != nil {
+			return err
+		}
+	}
+	m, err := loadModel(*modelPath)
+	if err != nil {
+		return err
+	}
+	if *threshold != 0 && !m.Multilabel() {
+		return usagef("-threshold applies to multi-label models only; %s picks the most probable class", *modelPath)
+	}
+	if *plot != "" && m.Multilabel() {
+		return usagef("-plot: a multi-label model has no confusion matrix (each class is its own yes/no question)")
+	}
+	set, err := loadData(*dataPath, dataForModel(m, *label, false))
+	if err != nil {
+		return err
+	}
+	rep, err := evaluate(m, set, *threshold)
+	if err != nil {
+		return fmt.Errorf("%s: %w", *dataPath, err)
+	}
+	if *plot != "" {
+		title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
+		err := writeAtomic(*plot, func(w io.Writer) error {
+			return chart.ConfusionPlot(w, format, title, rep.Classes, rep.Confusion)
+		})
+		if err != nil {
+			return fmt.Errorf("-plot %s: %w", *plot, err)
+		}
+	}
+	if *asJSON {
+		return json.NewEncoder(e.stdout).Encode(rep)
+	}
+	writeReport(e.stdout, *modelPath, *dataPath, m, rep)
+	return nil
+}
+
+// dataForModel returns the CSV options that read a data file for model m:
+// its feature names (else its input count), classes and multi-label setting.
+func dataForModel(m *nn.Model, label string, noLabel bool) data.CSVOptions {
+	opt := data.CSVOptions{Label: label, NoLabel: noLabel, Classes: m.Classes, Multilabel: m.Multilabel()}
+	if m.Features != nil {
+		opt.Features = m.Features
+	} else {
+		opt.Inputs = m.Inputs()
+	}
+	return opt
+}
+
+// evaluate scores m on the labelled rows of set.
+func evaluate(m *nn.Model, set *data.Set, threshold float64) (*score.Report, error) {
+	var p mat.Dense
+	m.ProbabilitiesBatch(&p, set.X)
+	return score.Evaluate(&p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Threshold: threshold})
+}
+
+func displayName(m *nn.Model) string {
+	if m.Spec.Name != "" {
+		return m.Spec.Name
+	}
+	return "model"
+}
+
+func baseName(path string) string {
+	if i := strings.LastIndexAny(path, `/\`); i >= 0 {
+		return path[i+1:]
+	}
+	return path
+}
+
+// writeReport writes the text report of evaluate. Layout:
+//
+//	session-triage (m.seine.json) on sessions.csv: 3000 rows
+//
+//	  accuracy        96.53%   2896 of 3000 rows right
+//	  cross-entropy   0.1876   nats per row
+//	  macro F1        0.9602   mean of the class F1 scores
+//
+//	  class     rows  predicted  precision  recall      F1
+//	  ...
+//
+//	  confusion: true class down, predicted class across
+//	  ...
+func writeReport(w io.Writer, modelPath, dataPath string, m *nn.Model, r *score.Report) {
+	fmt.Fprintf(w, "%s (%s) on %s: %d rows\n\n", displayName(m), baseName(modelPath), baseName(dataPath), r.Rows)
+	right := int(math.Round(r.Accuracy * float64(r.Rows)))
+	if r.Multilabel {
+		fmt.Fprintf(w, "  exact sets      %6.2f%%  %d of %d rows with every class right\n", 100*r.Accuracy, right, r.Rows)
+		fmt.Fprintf(w, "  Hamming loss    %7.4f  share of (row, class) decisions wrong, threshold %g\n", *r.HammingLoss, r.Threshold)
+	} else {
+		fmt.Fprintf(w, "  accuracy        %6.2f%%  %d of %d rows right\n", 100*r.Accuracy, right, r.Rows)
+	}
+	fmt.Fprintf(w, "  cross-entropy   %7.4f  nats per row\n", r.CrossEntropy)
+	fmt.Fprintf(w, "  macro F1        %7.4f  mean of the class F1 scores\n\n", r.MacroF1)
+
+	cw := len("class")
+	for _, c := range r.Classes {
+		cw = max(cw, len([]rune(c)))
+	}
+	fmt.Fprintf(w, "  %-*s  %6s  %9s  %9s  %6s  %6s\n", cw, "class", "rows", "predicted", "precision", "recall", "F1")
+	for _, c := range r.PerClass {
+		fmt.Fprintf(w, "  %s  %6d  %9d  %9.4f  %6.4f  %6.4f\n", pad(c.Name, cw), c.Rows, c.Predicted, c.Precision, c.Recall, c.F1)
+	}
+	if r.Confusion == nil {
+		return
+	}
+	fmt.Fprintf(w, "\n  confusion: true class down, predicted class across\n")
+	colw := make([]int, len(r.Classes))
+	for j, c := range r.Classes {
+		colw[j] = len([]rune(c))
+		for i := range r.Confusion {
+			colw[j] = max(colw[j], len(fmt.Sprint(r.Confusion[i][j])))
+		}
+	}
+	fmt.Fprintf(w, "  %s", pad("", cw))
+	for j, c := range r.Classes {
+		fmt.Fprintf(w, "  %*s", colw[j]+len(c)-len([]rune(c)), c)
+	}
+	fmt.Fprintln(w)
+	for i, row := range r.Confusion {
+		fmt.Fprintf(w, "  %s", pad(r.Classes[i], cw))
+		for j, n := range row {
+			fmt.Fprintf(w, "  %*d", colw[j], n)
+		}
+		fmt.Fprintln(w)
+	}
+}
+
+// pad left-aligns s in a field of width runes.
+func pad(s string, width int) string {
+	if n := len([]rune(s)); n < width {
+		return s + strings.Repeat(" ", width-n)
+	}
+	return s
+}

@@ -1,0 +1,447 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+	"strings"
+
+	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/optim"
+	"github.com/seine-ml/seine/spec"
+	"github.com/seine-ml/seine/train"
+)
+
+// defaultIterations is optim's iteration limit when neither the spec nor
+// -iterations sets one (optim.Limits: "0 means 10,000").
+const defaultIterations = 10_000
+
+const trainHelp = `Flags that are set override the spec's train: section; flags left out keep
+the spec's values. The holdout rows are dealt by class (stratified) with
+-seed, which defaults to the spec's init seed and also seeds the initial
+params and the mini-batch shuffles.
+
+Progress goes to standard error: a bar redrawn in place on a terminal,
+otherwise a line after the first iteration and then at most one per tenth of
+the iterations and per 2 seconds; -quiet leaves it out. The summary goes to
+standard output.
+
+The model file is replaced only when the run succeeds, by writing a new file
+beside it and renaming it over the old one: a failed run never leaves a
+half-written or lost model. A run whose cost or gradient becomes NaN or
+infinite (diverged) exits with status 1 and writes nothing.
+
+Interrupt (Ctrl-C) or SIGTERM stops the run within one evaluation; the model
+of the best iteration so far is saved to -out, a line on standard error says
+which, and the exit status is 1 because the run did not finish. Interrupted
+before the first iteration ends, nothing is written.
+
+-checkpoint FILE saves the current params as a model file every -every
+iterations, replaced atomically like -out. -resume FILE starts from the
+params of a model or checkpoint file whose net matches the spec; resume with
+the same data, -holdout and -seed so that the scaler is the same.
+`
+
+type trainFlags struct {
+	spec, data, out, label string
+	optimizer              string
+	iterations, batch      int
+	rate, holdout          float64
+	seed                   uint64
+	standardize            bool
+	keepBest, quiet        bool
+	patience               int
+	checkpoint, resume     string
+	every                  int
+	set                    map[string]bool // flags given on the command line
+}
+
+func runTrain(ctx context.Context, e *env, args []string) error {
+	var f trainFlags
+	fs := newFlags("train", e)
+	fs.StringVar(&f.spec, "spec", "", "spec `FILE` (YAML) describing the net")
+	fs.StringVar(&f.data, "data", "", "training data, a CSV `FILE` with a header row")
+	fs.StringVar(&f.out, "out", "", "model `FILE` to write (conventionally NAME.seine.json)")
+	fs.StringVar(&f.label, "label", "", "name of the label `COLUMN` (default the last column)")
+	fs.StringVar(&f.optimizer, "optimizer", "", "method: gd, cg, lbfgs, momentum or adam (default the spec's, else lbfgs)")
+	fs.IntVar(&f.iterations, "iterations", 0, "iteration limit, epochs for momentum and adam (default the spec's, else 10000)")
+	fs.Float64Var(&f.rate, "rate", 0, "learning rate for gd, momentum and adam (default the spec's, else the method's)")
+	fs.IntVar(&f.batch, "batch", 0, "mini-batch `rows` for momentum and adam; 0 = all rows (default the spec's)")
+	fs.Float64Var(&f.holdout, "holdout", 0, "`FRACTION` of the rows, in (0, 1), kept out of training to measure the fit; 0 = none")
+	fs.Uint64Var(&f.seed, "seed", 0, "seed of the holdout split, initial params and shuffles (default the spec's init seed)")
+	fs.BoolVar(&f.standardize, "standardize", true, "centre and scale each feature on the training rows")
+	fs.BoolVar(&f.keepBest, "keep-best", false, "save the params of the iteration with the lowest holdout cost (needs -holdout)")
+	fs.IntVar(&f.patience, "patience", 0, "stop after `N` iterations without a lower holdout cost; 0 = never (needs -holdout)")
+	fs.BoolVar(&f.quiet, "quiet", false, "no progress on standard error")
+	fs.StringVar(&f.checkpoint, "checkpoint", "", "also save the current params to this model `FILE` during the run")
+	fs.IntVar(&f.every, "every", 0, "checkpoint every `N` iterations (default a tenth of the iteration limit)")
+	fs.StringVar(&f.resume, "resume", "", "start from the params of this model or checkpoint `FILE`")
+	usage := fs.Usage
+	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+trainHelp) }
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	f.set = map[string]bool{}
+	fs.Visit(func(fl *flag.Flag) { f.set[fl.Name] = true })
+	if err := f.check(); err != nil {
+		return err
+	}
+
+	s, err := loadSpec(f.spec)
+	if err != nil {
+		return err
+	}
+	s = s.Clone()
+	f.override(s, e.stderr)
+	if err := refuseOverwrite("-out", f.out, "spec", f.spec, "data", f.data, "-resume", f.resume); err != nil {
+		return err
+	}
+	if err := refuseOverwrite("-checkpoint", f.checkpoint, "spec", f.spec, "data", f.data, "-out", f.out); err != nil {
+		return err
+	}
+	set, err := loadData(f.data, dataFor(s, f.label))
+	if err != nil {
+		return err
+	}
+	if err := checkWritable("-out", f.out); err != nil {
+		return err
+	}
+	if f.checkpoint != "" {
+		if err := checkWritable("-checkpoint", f.checkpoint); err != nil {
+			return err
+		}
+	}
+
+	trainSet, hold := set, (*data.Set)(nil)
+	if f.holdout > 0 {
+		if trainSet, hold, err = data.Split(set, f.holdout, s.Init.Seed); err != nil {
+			return fmt.Errorf("%s: -holdout %g of %d rows: %w", f.data, f.holdout, set.Rows(), err)
+		}
+	}
+	cfg := train.Config{
+		Holdout:  hold,
+		KeepBest: f.keepBest,
+		Patience: f.patience,
+		NoScale:  !f.standardize,
+	}
+	if f.resume != "" {
+		if cfg.Start, err = resumeParams(f.resume, s); err != nil {
+			return err
+		}
+	}
+	guard, err := newDivergenceGuard(s, trainSet, cfg.Start, cfg.NoScale)
+	if err != nil {
+		return fmt.Errorf("%s: %w", f.data, err)
+	}
+	cfg.Start = guard.start
+	limit := s.Train.Iterations
+	if limit == 0 {
+		limit = defaultIterations
+	}
+	var pr *progress
+	if f.quiet {
+		pr = newProgress(nil, false, limit)
+	} else {
+		pr = newProgress(e.stderr, e.terminal, limit)
+	}
+	cfg.Progress = func(p train.Progress) bool { return guard.check(p) || pr.step(p) }
+	if f.checkpoint != "" {
+		every := f.every
+		if every == 0 {
+			every = max(limit/10, 1)
+		}
+		cfg.Limits.Observer = checkpointer(f.checkpoint, every, s, trainSet, !f.standardize, pr, e.stderr)
+	}
+
+	res, err := train.Train(ctx, s, trainSet, cfg)
+	pr.done()
+	for _, w := range resWarnings(res) {
+		fmt.Fprintf(e.stderr, "seine train: warning: %s\n", w)
+	}
+	if err == nil && guard.diverged {
+		err = fmt.Errorf("%w: cost %g at iteration %d", optim.ErrDiverged, guard.cost, guard.iter)
+	}
+	if err != nil {
+		return f.failure(e, s, guard, res, err, hold != nil)
+	}
+	if err := res.Model.Save(f.out); err != nil {
+		return fmt.Errorf("-out %s: %w", f.out, unwrapSave(err))
+	}
+	writeTrainSummary(e.stdout, f.out, res, hold != nil, f.keepBest)
+	return nil
+}
+
+// check rejects flag values out of range, before any file is read.
+func (f *trainFlags) check() error {
+	switch {
+	case f.spec == "":
+		return usagef("-spec is required")
+	case f.data == "":
+		return usagef("-data is required")
+	case f.out == "":
+		return usagef("-out is required")
+	case f.iterations < 0:
+		return usagef("-iterations %d: want a count ≥ 0", f.iterations)
+	case f.batch < 0:
+		return usagef("-batch %d: want a row count ≥ 0", f.batch)
+	case f.rate < 0 || math.IsNaN(f.rate) || math.IsInf(f.rate, 0):
+		return usagef("-rate %g: want a finite number ≥ 0", f.rate)
+	case !(f.holdout >= 0 && f.holdout < 1):
+		return usagef("-holdout %g: want a fraction in (0, 1), or 0 for none", f.holdout)
+	case f.patience < 0:
+		return usagef("-patience %d: want a count ≥ 0", f.patience)
+	case (f.keepBest || f.patience > 0) && f.holdout == 0:
+		return usagef("-keep-best and -patience need a holdout: add -holdout FRACTION")
+	case f.every < 0:
+		return usagef("-every %d: want a count ≥ 0", f.every)
+	case f.set["every"] && f.checkpoint == "":
+		return usagef("-every needs -checkpoint FILE")
+	}
+	if f.optimizer != "" {
+		if _, ok := spec.ParseOptimizer(f.optimizer); !ok {
+			return usagef("-optimizer %q: want one of gd, cg, lbfgs, momentum, adam", f.optimizer)
+		}
+	}
+	return nil
+}
+
+// override writes the flags that were set into the spec's train: section
+// and init seed, so that the saved model records how it was trained.
+func (f *trainFlags) override(s *spec.Network, stderr io.Writer) {
+	if f.set["optimizer"] {
+		s.Train.Optimizer, _ = spec.ParseOptimizer(f.optimizer)
+	}
+	if f.set["iterations"] {
+		s.Train.Iterations = f.iterations
+	}
+	if f.set["rate"] {
+		s.Train.Rate = f.rate
+	}
+	if f.set["batch"] {
+		s.Train.Batch = f.batch
+	}
+	if f.set["seed"] {
+		s.Init.Seed = f.seed
+	}
+	o := s.Train.Optimizer
+	name := o.String()
+	if o == 0 {
+		name = "lbfgs"
+	}
+	if f.set["rate"] && (o == 0 || o == spec.CG || o == spec.LBFGS) {
+		fmt.Fprintf(stderr, "seine train: note: %s uses a line search; -rate is ignored\n", name)
+	}
+	if f.set["batch"] && o != spec.Momentum && o != spec.Adam {
+		fmt.Fprintf(stderr, "seine train: note: %s uses all rows at every step; -batch is ignored\n", name)
+	}
+}
+
+// failure turns an error of train.Train into the command's outcome: an
+// interrupted run saves what it has; anything else writes nothing.
+func (f *trainFlags) failure(e *env, s *spec.Network, guard *divergenceGuard, res *train.Result, err error, hasHold bool) error {
+	interrupted := errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)
+	switch {
+	case interrupted && (res == nil || res.Model == nil || res.Run.Iterations == 0):
+		return fmt.Errorf("interrupted before the first iteration ended; %s was not written", f.out)
+	case interrupted:
+		if serr := res.Model.Save(f.out); serr != nil {
+			return fmt.Errorf("interrupted at iteration %d, and saving failed: -out %s: %w", res.Run.Iterations, f.out, unwrapSave(serr))
+		}
+		writeTrainSummary(e.stdout, f.out, res, hasHold, f.keepBest)
+		return fmt.Errorf("interrupted at iteration %d: saved the model of iteration %d to %s", res.Run.Iterations, res.BestIter, f.out)
+	case errors.Is(err, optim.ErrDiverged):
+		it := guard.iter
+		if !guard.diverged && res != nil {
+			it = res.Run.Iterations + 1
+		}
+		hint := "a smaller -rate"
+		if o := s.Train.Optimizer; o == 0 || o == spec.CG || o == spec.LBFGS {
+			hint = "a larger penalty or standardized features"
+		}
+		return fmt.Errorf("diverged at iteration %d: the cost grew without bound or became NaN; try %s; %s was not written", it, hint, f.out)
+	case errors.Is(err, optim.ErrNotFiniteStart):
+		return fmt.Errorf("the cost or gradient at the initial params is not finite (try -standardize or a smaller init scale); %s was not written", f.out)
+	}
+	msg := err.Error()
+	if strings.Contains(msg, "refusing to build a model") {
+		return fmt.Errorf("the trained params are not finite, so no model was built; %s was not written (%v)", f.out, err)
+	}
+	return fmt.Errorf("%v; %s was not written", err, f.out)
+}
+
+func resWarnings(res *train.Result) []string {
+	if res == nil {
+		return nil
+	}
+	return res.Warnings
+}
+
+// unwrapSave drops nn's "nn: saving model PATH:" prefix, since the caller
+// names the path and flag itself.
+func unwrapSave(err error) error {
+	if u := errors.Unwrap(err); u != nil {
+		return u
+	}
+	return err
+}
+
+// divergenceGuard stops a run whose cost has blown up. optim stops on a
+// NaN or infinite cost, but a fixed-step method with a far too large rate
+// can first jump to huge finite costs, where optim's relative gradient test
+// (‖∇J‖ ≤ tol·|J|) may even report convergence. The guard calls a run
+// diverged when an iteration's cost is not finite or exceeds
+// divergenceFactor·max(1, J(x0)), the cost at the starting params: a cost
+// a thousand times the start is far beyond the noise of mini-batch epochs.
+type divergenceGuard struct {
+	start    []float64 // x0, given to train.Config.Start
+	limit    float64   // costs above it count as divergence
+	diverged bool
+	cost     float64 // the cost that tripped the guard
+	iter     int     // and its iteration
+}
+
+const divergenceFactor = 1000
+
+// newDivergenceGuard evaluates the cost at the starting params (start, or
+// the spec's initialisation) on the training rows, scaled as train.Train
+// scales them.
+func newDivergenceGuard(s *spec.Network, set *data.Set, start []float64, noScale bool) (*divergenceGuard, error) {
+	net, err := nn.Compile(s)
+	if err != nil {
+		return nil, err
+	}
+	if start == nil {
+		start = net.NewParams()
+	}
+	x, _, _, _ := train.Prepare(set, nil, noScale)
+	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{})
+	if err != nil {
+		return nil, err
+	}
+	c0 := obj.Eval(nil, start)
+	return &divergenceGuard{start: start, limit: divergenceFactor * math.Max(1, c0)}, nil
+}
+
+func (g *divergenceGuard) check(p train.Progress) bool {
+	if math.IsNaN(p.Cost) || math.IsInf(p.Cost, 0) || p.Cost > g.limit {
+		g.diverged, g.cost, g.iter = true, p.Cost, p.Iter
+		return true
+	}
+	return false
+}
+
+// resumeParams reads the params of the model file at path and checks that
+// its net has the shape of s.
+func resumeParams(path string, s *spec.Network) ([]float64, error) {
+	m, err := loadModel(path)
+	if err != nil {
+		return nil, fmt.Errorf("-resume: %w", err)
+	}
+	if got, want := netShape(m.Spec), netShape(s); got != want {
+		return nil, fmt.Errorf("-resume %s: its net is %s, the spec's is %s", path, got, want)
+	}
+	if strings.Join(m.Classes, ",") != strings.Join(s.Output.Classes, ",") {
+		return nil, fmt.Errorf("-resume %s: its classes are %s, the spec's are %s", path, strings.Join(m.Classes, ", "), strings.Join(s.Output.Classes, ", "))
+	}
+	return m.Params, nil
+}
+
+// netShape describes the layers of s in one line, e.g.
+// "16 → 24 tanh → 5 softmax".
+func netShape(s *spec.Network) string {
+	var b strings.Builder
+	fmt.Fprint(&b, s.Inputs)
+	for _, l := range s.Hidden {
+		fmt.Fprintf(&b, " → %d %s", l.Units, l.Activation)
+	}
+	fmt.Fprintf(&b, " → %d %s", s.Output.Units(), s.Output.Activation)
+	if s.Output.Multilabel {
+		b.WriteString(" (multi-label)")
+	}
+	return b.String()
+}
+
+// checkpointer returns an observer that saves the current params as a model
+// every `every` iterations. A failed save is reported once and the run goes
+// on: the final model matters more than the checkpoints.
+func checkpointer(path string, every int, s *spec.Network, set *data.Set, noScale bool, pr *progress, stderr io.Writer) func(optim.Step, []float64) bool {
+	_, _, sc, _ := train.Prepare(set, nil, noScale)
+	var mean, scale []float64
+	if sc != nil {
+		mean, scale = sc.Mean, sc.Scale
+	}
+	failed := false
+	return func(st optim.Step, x []float64) bool {
+		if st.Iter%every != 0 || failed {
+			return false
+		}
+		m, err := nn.NewModel(s, append([]float64(nil), x...), mean, scale, set.Classes, set.Features)
+		if err == nil {
+			m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
+				Status: "Checkpoint", Cost: st.Cost, TrainRows: set.Rows(), Seed: s.Init.Seed, Library: nn.Version,
+				TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
+			err = m.Save(path)
+		}
+		if err != nil {
+			failed = true
+			pr.done()
+			fmt.Fprintf(stderr, "seine train: warning: -checkpoint %s: %v; no more checkpoints\n", path, unwrapSave(err))
+		}
+		return false
+	}
+}
+
+// stopReasons says in words why a run stopped, by optim.Status name.
+var stopReasons = map[string]string{
+	"GradConverged":    "converged: the gradient norm fell below the tolerance",
+	"CostConverged":    "converged: the cost stopped changing",
+	"IterationLimit":   "reached the iteration limit",
+	"EvaluationLimit":  "reached the evaluation limit",
+	"TimeLimit":        "reached the time limit",
+	"Cancelled":        "interrupted",
+	"Diverged":         "diverged",
+	"LineSearchFailed": "the line search found no lower cost (usually a minimum up to rounding)",
+	"Stopped":          "early stop: the holdout cost stopped falling (-patience)",
+}
+
+func stopReason(status string) string {
+	if r, ok := stopReasons[status]; ok {
+		return r
+	}
+	return status
+}
+
+// writeTrainSummary writes the block that ends a training run.
+func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keepBest bool) {
+	m := res.Model
+	sm := m.Summary
+	name := m.Spec.Name
+	if name == "" {
+		name = "(unnamed spec)"
+	}
+	fmt.Fprintf(w, "%s → %s\n", name, filepath.Clean(out))
+	row := func(k, format string, a ...any) { fmt.Fprintf(w, "  %-13s %s\n", k, fmt.Sprintf(format, a...)) }
+	if hasHold {
+		row("rows", "%d training, %d holdout", sm.TrainRows, sm.HoldoutRows)
+	} else {
+		row("rows", "%d training, no holdout", sm.TrainRows)
+	}
+	row("net", "%s, %d params", netShape(m.Spec), len(m.Params))
+	row("method", "%s, %d iterations, %.0f evaluations, %.2fs", sm.Method, sm.Iterations, sm.Evaluations, sm.Seconds)
+	row("stopped", "%s", stopReason(sm.Status))
+	row("final cost", "%.6g (training rows, penalty included)", sm.Cost)
+	if hasHold {
+		row("accuracy", "%.2f%% training, %.2f%% holdout", 100*sm.TrainAccuracy, 100*sm.HoldoutAccuracy)
+		row("holdout", "cross-entropy %.6g", sm.HoldoutCost)
+	} else {
+		row("accuracy", "%.2f%% training", 100*sm.TrainAccuracy)
+	}
+	if keepBest {
+		row("kept", "params of iteration %d (lowest holdout cost)", res.BestIter)
+	}
+}
