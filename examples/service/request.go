@@ -1,0 +1,273 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"net/http"
+	"strconv"
+	"strings"
+)
+
+// maxRows is the most rows one request may carry.
+const maxRows = 1000
+
+// fieldError is a bad request, with the path of the offending field in
+// the request body: "body", "features", "features.req_per_min", "rows",
+// "rows[2]" or "rows[2][5]".
+type fieldError struct {
+	field string
+	msg   string
+	err   error // the underlying read or syntax error, if any
+}
+
+func (e *fieldError) Error() string { return e.field + ": " + e.msg }
+
+// parseRequest reads a classify request,
+//
+//	{"features": {"<name>": <number>, ...}}   every feature of the model, by name
+//	{"rows": [[<number>, ...], ...]}          1 … maxRows rows of inputs values each
+//
+// and returns its rows of raw features in model order; single reports the
+// "features" form. Numbers must be finite: JSON has no NaN or Infinity, and
+// a string, null or a number beyond the float64 range is refused. The body
+// is read token by token, so that even a syntax error (say a bare NaN) is
+// reported at the field where it occurs.
+func parseRequest(r io.Reader, features []string, inputs int) (rows [][]float64, single bool, ferr *fieldError) {
+	p := parser{dec: json.NewDecoder(r)}
+	p.dec.UseNumber()
+	if ferr := p.open('{', "body", "a JSON object"); ferr != nil {
+		return nil, false, ferr
+	}
+	var gotFeatures, gotRows bool
+	for p.dec.More() {
+		key, ferr := p.key("body")
+		if ferr != nil {
+			return nil, false, ferr
+		}
+		switch key {
+		case "features":
+			if gotFeatures {
+				return nil, false, &fieldError{field: key, msg: "given twice"}
+			}
+			gotFeatures = true
+			row, ferr := p.features(features)
+			if ferr != nil {
+				return nil, false, ferr
+			}
+			rows, single = [][]float64{row}, true
+		case "rows":
+			if gotRows {
+				return nil, false, &fieldError{field: key, msg: "given twice"}
+			}
+			gotRows = true
+			if rows, ferr = p.rows(inputs); ferr != nil {
+				return nil, false, ferr
+			}
+		default:
+			return nil, false, &fieldError{field: key, msg: `unknown field; want "features" or "rows"`}
+		}
+	}
+	if ferr := p.close("body"); ferr != nil {
+		return nil, false, ferr
+	}
+	if _, err := p.dec.Token(); err != io.EOF {
+		return nil, false, &fieldError{field: "body", msg: "more data after the JSON object"}
+	}
+	switch {
+	case gotFeatures && gotRows:
+		return nil, false, &fieldError{field: "body", msg: `give "features" or "rows", not both`}
+	case !gotFeatures && !gotRows:
+		return nil, false, &fieldError{field: "body", msg: `want "features" or "rows"`}
+	}
+	return rows, single, nil
+}
+
+// parser reads the request's tokens.
+type parser struct {
+	dec *json.Decoder
+}
+
+// fail turns a read error at field into a fieldError.
+func (p *parser) fail(field string, err error) *fieldError {
+	var tooBig *http.MaxBytesError
+	var syn *json.SyntaxError
+	switch {
+	case errors.As(err, &tooBig):
+		return &fieldError{field: "body", msg: fmt.Sprintf("larger than %d bytes", tooBig.Limit), err: err}
+	case errors.As(err, &syn):
+		msg := fmt.Sprintf("invalid JSON at byte %d: %v", syn.Offset, err)
+		if strings.Contains(msg, "'N'") || strings.Contains(msg, "'I'") {
+			msg += " (NaN and Infinity are not JSON numbers)"
+		}
+		return &fieldError{field: field, msg: msg, err: err}
+	case err == io.EOF, errors.Is(err, io.ErrUnexpectedEOF):
+		return &fieldError{field: field, msg: "body ended early", err: err}
+	}
+	return &fieldError{field: field, msg: err.Error(), err: err}
+}
+
+// open reads the delimiter d ('{' or '['); want describes it for errors.
+func (p *parser) open(d json.Delim, field, want string) *fieldError {
+	tok, err := p.dec.Token()
+	if err != nil {
+		return p.fail(field, err)
+	}
+	if got, ok := tok.(json.Delim); !ok || got != d {
+		return &fieldError{field: field, msg: "want " + want + ", got " + describe(tok)}
+	}
+	return nil
+}
+
+// close reads the delimiter that ends the object or array just read.
+func (p *parser) close(field string) *fieldError {
+	if _, err := p.dec.Token(); err != nil {
+		return p.fail(field, err)
+	}
+	return nil
+}
+
+// key reads an object key.
+func (p *parser) key(field string) (string, *fieldError) {
+	tok, err := p.dec.Token()
+	if err != nil {
+		return "", p.fail(field, err)
+	}
+	key, ok := tok.(string)
+	if !ok { // the decoder reports a non-string key as a syntax error; be safe
+		return "", &fieldError{field: field, msg: "want a key, got " + describe(tok)}
+	}
+	return key, nil
+}
+
+// number reads one finite number.
+func (p *parser) number(field string) (float64, *fieldError) {
+	tok, err := p.dec.Token()
+	if err != nil {
+		return 0, p.fail(field, err)
+	}
+	n, ok := tok.(json.Number)
+	if !ok {
+		return 0, &fieldError{field: field, msg: "want a number, got " + describe(tok)}
+	}
+	v, err := strconv.ParseFloat(string(n), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, &fieldError{field: field, msg: fmt.Sprintf("%s is not a finite number", n)}
+	}
+	return v, nil
+}
+
+// features reads {"<name>": <number>, ...} holding every feature once.
+func (p *parser) features(names []string) ([]float64, *fieldError) {
+	if len(names) == 0 {
+		return nil, &fieldError{field: "features", msg: `the model has no feature names; send "rows"`}
+	}
+	if ferr := p.open('{', "features", "an object of feature values by name"); ferr != nil {
+		return nil, ferr
+	}
+	col := make(map[string]int, len(names))
+	for j, name := range names {
+		col[name] = j
+	}
+	row := make([]float64, len(names))
+	seen := make([]bool, len(names))
+	for p.dec.More() {
+		name, ferr := p.key("features")
+		if ferr != nil {
+			return nil, ferr
+		}
+		field := "features." + name
+		j, ok := col[name]
+		if !ok {
+			return nil, &fieldError{field: field, msg: "unknown feature; want one of " + strings.Join(names, ", ")}
+		}
+		if seen[j] {
+			return nil, &fieldError{field: field, msg: "given twice"}
+		}
+		seen[j] = true
+		if row[j], ferr = p.number(field); ferr != nil {
+			return nil, ferr
+		}
+	}
+	if ferr := p.close("features"); ferr != nil {
+		return nil, ferr
+	}
+	var missing []string
+	for j, ok := range seen {
+		if !ok {
+			missing = append(missing, names[j])
+		}
+	}
+	if len(missing) > 0 {
+		return nil, &fieldError{field: "features." + missing[0], msg: "missing (all missing: " + strings.Join(missing, ", ") + ")"}
+	}
+	return row, nil
+}
+
+// rows reads [[<number>, ...], ...], each row of exactly inputs numbers.
+func (p *parser) rows(inputs int) ([][]float64, *fieldError) {
+	if ferr := p.open('[', "rows", "an array of rows"); ferr != nil {
+		return nil, ferr
+	}
+	var rows [][]float64
+	for p.dec.More() {
+		i := len(rows)
+		if i == maxRows {
+			return nil, &fieldError{field: "rows", msg: fmt.Sprintf("more than %d rows", maxRows)}
+		}
+		field := fmt.Sprintf("rows[%d]", i)
+		if ferr := p.open('[', field, "an array of numbers"); ferr != nil {
+			return nil, ferr
+		}
+		row := make([]float64, 0, inputs)
+		for p.dec.More() {
+			if len(row) == inputs {
+				return nil, &fieldError{field: field, msg: fmt.Sprintf("more than %d values", inputs)}
+			}
+			v, ferr := p.number(fmt.Sprintf("%s[%d]", field, len(row)))
+			if ferr != nil {
+				return nil, ferr
+			}
+			row = append(row, v)
+		}
+		if ferr := p.close(field); ferr != nil {
+			return nil, ferr
+		}
+		if len(row) != inputs {
+			return nil, &fieldError{field: field, msg: fmt.Sprintf("has %d values, want %d", len(row), inputs)}
+		}
+		rows = append(rows, row)
+	}
+	if ferr := p.close("rows"); ferr != nil {
+		return nil, ferr
+	}
+	if len(rows) == 0 {
+		return nil, &fieldError{field: "rows", msg: "no rows"}
+	}
+	return rows, nil
+}
+
+// describe names the kind of a JSON token for messages.
+func describe(tok json.Token) string {
+	switch t := tok.(type) {
+	case json.Delim:
+		switch t {
+		case '{':
+			return "an object"
+		case '[':
+			return "an array"
+		}
+		return fmt.Sprintf("%q", string(t))
+	case string:
+		return fmt.Sprintf("the string %q", t)
+	case bool:
+		return "a boolean"
+	case nil:
+		return "null"
+	case json.Number:
+		return "a number"
+	}
+	return fmt.Sprintf("%v", tok)
+}
