@@ -1,0 +1,70 @@
+package nn
+
+import "runtime"
+
+// TrainingBytes estimates the bytes that an Objective of n over rows rows
+// holds with the options opt, which is what the net itself needs in memory
+// while it is trained. With P = NumParams, n_0 … n_L the layer widths, K
+// the number of classes, m = rows, W the workers (opt.Workers, or
+// GOMAXPROCS when 0, at most the number of chunks ⌈m/Chunk⌉), c = min(Chunk,
+// m) the rows of one chunk and b the mini-batch rows (opt.Batch when it is
+// in (0, m), else no batch buffers), it counts 8-byte words:
+//
+//	data        m·n_0 + m·K            x (scaled) and y, which the objective reads in place
+//	            + m                    the targets of a binary sigmoid output (one unit)
+//	batches     m + b·n_0 + b·n_L      row permutation and the gathered batch rows
+//	workspaces  W·(P + 3·c·Σ_{l≥1} n_l) per worker: its gradient and Z, A, Δ of every layer
+//	gradient    P                      the sum of the chunk gradients
+//
+// plus at most 160 bytes per chunk for the chunk descriptors (two
+// blas64.General of 48 bytes each, and the lists of the batches). It leaves out what the
+// caller holds besides: the data set as read from the file (another m·n_0 +
+// m·K words, often kept alongside the scaled copy), holdout rows and their
+// workspace, and the optimizer's state. For the optimizer add, in words of
+// P, the 3 vectors every run of optim.Minimize keeps (current point,
+// gradient, best point) and one for the result, plus the method's own:
+//
+//	gd        2           trial point and gradient
+//	cg        3           direction, trial point and gradient
+//	lbfgs     2·Memory+3  the Memory pairs (s, y), direction, trial point, gradient
+//	momentum  4           velocity, look-ahead point, epoch sums
+//	adam      4           first and second moments, epoch sums
+//
+// so L-BFGS with the default Memory of 10 keeps about 27·P words in all.
+// Go's allocator and garbage collector can hold up to about twice the live
+// bytes at a peak (GOGC=100), which this estimate does not include.
+func (n *Net) TrainingBytes(rows int, opt ObjectiveOptions) int64 {
+	if rows < 1 {
+		rows = 1
+	}
+	m := int64(rows)
+	P := int64(n.np)
+	n0 := int64(n.sizes[0])
+	nL := int64(n.sizes[len(n.sizes)-1])
+	K := int64(len(n.spec.Output.Classes))
+
+	words := m*n0 + m*K
+	if nL == 1 && K == 2 {
+		words += m
+	}
+	if b := int64(opt.Batch); b > 0 && b < m {
+		words += m + b*n0 + b*nL
+	}
+	chunk := int64(opt.Chunk)
+	if chunk <= 0 {
+		chunk = DefaultChunk
+	}
+	chunks := (m + chunk - 1) / chunk
+	workers := int64(opt.Workers)
+	if workers <= 0 {
+		workers = int64(runtime.GOMAXPROCS(0))
+	}
+	workers = min(workers, chunks)
+	var units int64
+	for _, s := range n.sizes[1:] {
+		units += int64(s)
+	}
+	c := min(chunk, m)
+	words += workers*(P+3*c*units) + P
+	return 8*words + 160*chunks
+}

@@ -1,0 +1,90 @@
+package nn
+
+import (
+	"runtime"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/spec"
+)
+
+const memorySpec = `
+version: 1
+inputs: 16
+hidden:
+  - units: 24
+    activation: tanh
+output:
+  classes: [a, b, c, d, e]
+`
+
+func memoryNet(t *testing.T) *Net {
+	t.Helper()
+	s, err := spec.Parse(strings.NewReader(memorySpec))
+	if err != nil {
+		t.Fatal(err)
+	}
+	n, err := Compile(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return n
+}
+
+// TestTrainingBytesFormula checks the documented formula on a case worked
+// by hand: P = 16·24+24+24·5+5 = 533, m = 10,000, W = 2, c = 256,
+// Σ_{l≥1} n_l = 29, 40 chunks:
+//
+//	data 10,000·(16+5) = 210,000 words; workspaces 2·(533 + 3·256·29)
+//	= 45,610; gradient 533; in all 256,143 words = 2,049,144 bytes, plus
+//	40·160 = 6,400 bytes.
+func TestTrainingBytesFormula(t *testing.T) {
+	n := memoryNet(t)
+	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2}), int64(2_055_544); got != want {
+		t.Errorf("TrainingBytes = %d, want %d", got, want)
+	}
+	// A mini-batch of 100 rows adds the permutation (10,000 words) and the
+	// gathered batch, 100·16 + 100·5 words.
+	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2, Batch: 100}), int64(2_055_544+8*(10_000+1_600+500)); got != want {
+		t.Errorf("with Batch 100: %d, want %d", got, want)
+	}
+}
+
+// TestTrainingBytesMeasured compares the estimate without the data matrices
+// with the bytes that NewObjective and the first Eval allocate. The bound is
+// loose (±25%) because the estimate leaves out slice headers, goroutine
+// stacks and the runtime's size classes, while the arrays it counts make up
+// nearly all of the bytes.
+func TestTrainingBytesMeasured(t *testing.T) {
+	n := memoryNet(t)
+	const m = 2000
+	x := mat.NewDense(m, 16, nil)
+	y := mat.NewDense(m, 5, nil)
+	for i := 0; i < m; i++ {
+		y.Set(i, i%5, 1)
+		for j := 0; j < 16; j++ {
+			x.Set(i, j, float64((i*j)%7)-3)
+		}
+	}
+	params := n.NewParams()
+	grad := make([]float64, len(params))
+	opt := ObjectiveOptions{Workers: 2}
+	var before, after runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&before)
+	o, err := NewObjective(n, x, y, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o.Eval(grad, params)
+	runtime.ReadMemStats(&after)
+	measured := float64(after.TotalAlloc - before.TotalAlloc)
+	est := float64(n.TrainingBytes(m, opt) - 8*m*(16+5))
+	t.Logf("allocated %.0f bytes, estimate %.0f", measured, est)
+	if r := measured / est; r < 0.75 || r > 1.25 {
+		t.Errorf("allocated %.0f bytes, estimate %.0f (ratio %.3f)", measured, est, r)
+	}
+	runtime.KeepAlive(o)
+}
