@@ -1,0 +1,160 @@
+package diag
+
+import (
+	"context"
+	"errors"
+	"math"
+	"os"
+	"testing"
+
+	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/optim"
+	"github.com/seine-ml/seine/spec"
+)
+
+// TestLearningCurveTriage: on the synthetic triage demo the learning curve
+// has the usual shape (common practice): training cost rises and holdout
+// cost falls as rows are added, since a small subset is easy to fit and a
+// poor guide to new rows. The trend is asserted between the smallest and
+// the largest size only, not step by step.
+//
+// The penalty per row is held at the spec's full-data value (the default of
+// CurveConfig). With the spec's λ = 1 applied as written to every subset,
+// λ/(2m) is ten times stronger at the smallest of 10 sizes than at the
+// largest, and the training cross-entropy then falls with m instead
+// (measured: 0.188 nats at 225 rows, 0.109 at 2250).
+func TestLearningCurveTriage(t *testing.T) {
+	f, err := os.Open("../examples/triage/triage.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := spec.Parse(f)
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err = os.Open("../examples/triage/sessions.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	set, err := data.ReadCSV(f, data.CSVOptions{Features: s.Features, Classes: s.Output.Classes})
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := LearningCurve(context.Background(), s, set, CurveConfig{Steps: 3, Limits: optim.Limits{Iterations: 200}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range c.Points {
+		t.Logf("%4d rows: train %.4f holdout %.4f", p.Rows, p.TrainCost, p.HoldoutCost)
+	}
+	// 3000 rows, holdout 0.25: 750 held out, 2250 for training, sizes
+	// round(i·2250/3) = 750, 1500, 2250.
+	if c.HoldoutRows != 750 || len(c.Points) != 3 || c.Points[0].Rows != 750 || c.Points[2].Rows != 2250 {
+		t.Fatalf("holdout %d, points %+v", c.HoldoutRows, c.Points)
+	}
+	first, last := c.Points[0], c.Points[2]
+	if !(last.TrainCost > first.TrainCost) {
+		t.Errorf("training cost did not rise: %.4f at %d rows, %.4f at %d", first.TrainCost, first.Rows, last.TrainCost, last.Rows)
+	}
+	if !(last.HoldoutCost < first.HoldoutCost) {
+		t.Errorf("holdout cost did not fall: %.4f at %d rows, %.4f at %d", first.HoldoutCost, first.Rows, last.HoldoutCost, last.Rows)
+	}
+	// The classes of the triage demo have unequal shares, so the
+	// baseline lies below ln 5 (the cross-entropy of a uniform guess over
+	// five classes; common practice) and above 0.
+	if !(c.Baseline > 0 && c.Baseline < math.Log(5)) {
+		t.Errorf("baseline %g outside (0, ln 5)", c.Baseline)
+	}
+}
+
+// TestBaselineIris: with equal class shares the baseline is the
+// cross-entropy of a uniform guess, ln K (common practice); iris has 50
+// rows of each of 3 classes, and a stratified split keeps the shares.
+func TestBaselineIris(t *testing.T) {
+	set := readSet(t, "iris.csv")
+	tr, ho, err := data.Split(set, 0.2, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// ln 3 exactly up to the rounding of a mean of 30 equal logs.
+	if got := baseline(tr, ho); math.Abs(got-math.Log(3)) > 1e-12 {
+		t.Errorf("baseline = %.15g, want ln 3 = %.15g", got, math.Log(3))
+	}
+}
+
+// TestStratifiedOrder: every prefix of k rows holds each class c close to
+// its share k·n_c/n. Derivation of the bound: with the threshold t of the
+// prefix, class c contributes round(t·n_c) rows (keys (r + ½)/n_c), within
+// ½ of t·n_c; summing over C classes, k is within C/2 of t·n, so
+// |count_c − k·n_c/n| ≤ ½ + (C/2)·n_c/n ≤ ½ + C/2.
+func TestStratifiedOrder(t *testing.T) {
+	set := readSet(t, "wdbc.csv") // 212 and 357 rows
+	order := stratifiedOrder(set, 5)
+	labels := set.Labels()
+	counts := set.Counts()
+	n := float64(set.Rows())
+	seen := make([]bool, set.Rows())
+	got := make([]int, len(counts))
+	bound := 0.5 + float64(len(counts))/2
+	for k, row := range order {
+		if seen[row] {
+			t.Fatalf("row %d twice", row)
+		}
+		seen[row] = true
+		got[labels[row]]++
+		for c, nc := range counts {
+			want := float64(k+1) * float64(nc) / n
+			if d := math.Abs(float64(got[c]) - want); d > bound {
+				t.Fatalf("prefix %d: class %d has %d rows, share says %.2f", k+1, c, got[c], want)
+			}
+		}
+	}
+	if len(order) != set.Rows() {
+		t.Fatalf("order has %d rows, want %d", len(order), set.Rows())
+	}
+	again := stratifiedOrder(set, 5)
+	for i := range order {
+		if order[i] != again[i] {
+			t.Fatal("same seed, different order")
+		}
+	}
+}
+
+// TestShapeOf checks the documented rules on hand-made curves (B = 1).
+func TestShapeOf(t *testing.T) {
+	pt := func(tr, ho float64) CurvePoint { return CurvePoint{TrainCost: tr, HoldoutCost: ho} }
+	tests := []struct {
+		name string
+		pts  []CurvePoint
+		want Shape
+	}{
+		{"wide gap at both", []CurvePoint{pt(0.01, 0.5), pt(0.05, 0.4), pt(0.1, 0.35)}, HighVariance},
+		{"gap closes at the end", []CurvePoint{pt(0.05, 0.4), pt(0.2, 0.3)}, NoClearSign},
+		{"both high and close", []CurvePoint{pt(0.6, 0.8), pt(0.65, 0.7)}, HighBias},
+		{"both low and close", []CurvePoint{pt(0.1, 0.2), pt(0.12, 0.14)}, NoClearSign},
+		{"one point, wide", []CurvePoint{pt(0.1, 0.5)}, HighVariance},
+	}
+	for _, tt := range tests {
+		if got := shapeOf(tt.pts, 1); got != tt.want {
+			t.Errorf("%s: %v, want %v", tt.name, got, tt.want)
+		}
+	}
+}
+
+func TestLearningCurveErrors(t *testing.T) {
+	s := parseSpec(t, irisLogistic)
+	set := readSet(t, "iris.csv")
+	ctx := context.Background()
+	for _, cfg := range []CurveConfig{{Steps: -1}, {Holdout: 1.5}, {Steps: 500}} {
+		if _, err := LearningCurve(ctx, s, set, cfg); !errors.Is(err, ErrConfig) {
+			t.Errorf("%+v: err = %v, want ErrConfig", cfg, err)
+		}
+	}
+	cctx, cancel := context.WithCancel(ctx)
+	cancel()
+	if _, err := LearningCurve(cctx, s, set, CurveConfig{}); !errors.Is(err, context.Canceled) {
+		t.Errorf("cancelled: err = %v", err)
+	}
+}
