@@ -190,8 +190,15 @@ func (r *runner) updateBest() {
 	}
 }
 
+// gradConverged applies the gradient test ‖g‖ ≤ GradTol·max(1, |f|), with
+// |f| no larger than the best cost's magnitude: a cost that explodes (a step
+// far too long) must not pass a test made relative to it.
 func (r *runner) gradConverged() bool {
-	return r.gnorm <= r.lim.GradTol*math.Max(1, math.Abs(r.f))
+	scale := math.Abs(r.f)
+	if r.haveBest {
+		scale = math.Min(scale, math.Abs(r.bestF))
+	}
+	return r.gnorm <= r.lim.GradTol*math.Max(1, scale)
 }
 
 // checkAfter applies the tests made after every iteration.

@@ -19,9 +19,11 @@ type Limits struct {
 	Evaluations float64
 	// GradTol stops a run with GradConverged when
 	//
-	//	‖∇f(x_k)‖₂ ≤ GradTol · max(1, |f(x_k)|),
+	//	‖∇f(x_k)‖₂ ≤ GradTol · max(1, min(|f(x_k)|, |f_best|)),
 	//
-	// a test relative to the cost that becomes absolute when |f| < 1.
+	// a test relative to the cost that becomes absolute when |f| < 1;
+	// f_best, the lowest cost so far, keeps an exploding cost from
+	// passing it.
 	// 0 means 1e-6; negative or NaN is an error.
 	GradTol float64
 	// CostTol stops a run with CostConverged when
