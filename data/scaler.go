@@ -88,7 +88,7 @@ func meanSD(v []float64) (mean, sd float64, constant bool) {
 		comp += d
 	}
 	sd = math.Sqrt((ss - comp*comp/n) / (n - 1))
-	if math.IsInf(sd, 0) || math.IsNaN(sd) { // squares overflowed: scale by the largest deviation
+	if !(sd >= 1e-150 && sd <= 1e150) { // squares may have overflowed or underflowed: scale by the largest deviation
 		var m float64
 		for _, a := range v {
 			m = max(m, math.Abs(a-mean))
