@@ -111,7 +111,11 @@ func Prepare(set, holdout *data.Set, noScale bool) (x, hx *mat.Dense, sc *data.S
 	if noScale {
 		return x, hx, nil, nil
 	}
-	sc, warn = data.FitScaler(set.X)
+	var names []string // name the constant columns in warnings when known
+	if _, c := set.X.Dims(); len(set.Features) == c {
+		names = set.Features
+	}
+	sc, warn = data.FitScalerNamed(set.X, names)
 	sc.Transform(x, x)
 	if hx != nil {
 		sc.Transform(hx, hx)
