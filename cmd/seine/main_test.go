@@ -146,7 +146,7 @@ func TestUsage(t *testing.T) {
 }
 
 func TestHelp(t *testing.T) {
-	for _, c := range []string{"train", "evaluate"} {
+	for _, c := range []string{"train", "evaluate", "predict", "gradient-check", "inspect"} {
 		r := runIn("help", c)
 		if r.code != 0 || !strings.Contains(r.stdout, "Usage: seine "+c) {
 			t.Errorf("help %s: status %d, stdout %q", c, r.code, r.stdout)

@@ -1,15 +1,8 @@
 package main
 
-// Stubs until the commands are written; each file that implements a
-// command removes its stub from here.
+// Every core command is written; errNotYet remains for the stubs of the
+// diagnostics commands in stubs_diag.go.
 
-import (
-	"context"
-	"errors"
-)
+import "errors"
 
 var errNotYet = errors.New("not available yet")
-
-func runPredict(ctx context.Context, e *env, args []string) error       { return errNotYet }
-func runGradientCheck(ctx context.Context, e *env, args []string) error { return errNotYet }
-func runInspect(ctx context.Context, e *env, args []string) error       { return errNotYet }

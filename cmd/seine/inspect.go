@@ -1,0 +1,204 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+	"strings"
+
+	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/spec"
+)
+
+// defaultInspectRows is the number of rows the memory estimate assumes for
+// a spec when -rows is not given.
+const defaultInspectRows = 10_000
+
+const inspectHelp = `Describes the net of a spec or model: each weight layer (units in and out,
+activation, weights, biases), the param count and its size, the floating-
+point operations per row to predict and for one cost-and-gradient
+evaluation (a multiply-add counts 2), and an estimate of the memory that
+training on -rows rows takes (default 10000, or a model's training rows):
+the scaled data, the evaluation workspaces of GOMAXPROCS workers, the
+gradient, and the optimizer's vectors. For a model it also shows how it
+was trained.
+`
+
+func runInspect(ctx context.Context, e *env, args []string) error {
+	fs := newFlags("inspect", e)
+	specPath := fs.String("spec", "", "spec `FILE` (YAML) to describe")
+	modelPath := fs.String("model", "", "model `FILE` to describe")
+	rows := fs.Int("rows", 0, "training `rows` for the memory estimate (default 10000, or the model's training rows)")
+	usage := fs.Usage
+	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+inspectHelp) }
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if (*specPath == "") == (*modelPath == "") {
+		return usagef("give exactly one of -spec FILE and -model FILE")
+	}
+	if *rows < 0 {
+		return usagef("-rows %d: want a row count ≥ 1", *rows)
+	}
+	var (
+		s     *spec.Network
+		m     *nn.Model
+		path  string
+		err   error
+		kind  = "spec"
+		train = defaultInspectRows
+	)
+	if *specPath != "" {
+		path = *specPath
+		if s, err = loadSpec(path); err != nil {
+			return err
+		}
+	} else {
+		path, kind = *modelPath, "model"
+		if m, err = loadModel(path); err != nil {
+			return err
+		}
+		s = m.Spec
+		if m.Summary.TrainRows > 0 {
+			train = m.Summary.TrainRows
+		}
+	}
+	if *rows > 0 {
+		train = *rows
+	}
+	net, err := nn.Compile(s)
+	if err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	writeInspect(e.stdout, kind, path, s, net, train)
+	if m != nil {
+		writeModelSummary(e.stdout, m)
+	}
+	return nil
+}
+
+func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, rows int) {
+	name := s.Name
+	if name == "" {
+		name = "(unnamed)"
+	}
+	fmt.Fprintf(w, "%s %s (%s)\n", kind, name, path)
+	fmt.Fprintf(w, "  %d inputs", s.Inputs)
+	if s.Features != nil {
+		fmt.Fprintf(w, " (%s)", shortList(s.Features, 6))
+	}
+	fmt.Fprintf(w, "; %d classes (%s)", len(s.Output.Classes), shortList(s.Output.Classes, 8))
+	if s.Output.Multilabel {
+		fmt.Fprint(w, ", multi-label")
+	}
+	fmt.Fprintln(w)
+
+	sizes := net.Sizes()
+	fmt.Fprintf(w, "\n  %-5s  %11s  %-10s  %9s  %7s  %9s\n", "layer", "units", "activation", "weights", "biases", "params")
+	for l := 0; l < net.NumLayers(); l++ {
+		in, out := sizes[l], sizes[l+1]
+		act := s.Output.Activation
+		if l < len(s.Hidden) {
+			act = s.Hidden[l].Activation
+		}
+		fmt.Fprintf(w, "  %-5d  %s  %-10s  %9d  %7d  %9d\n", l+1, padLeft(fmt.Sprintf("%d → %d", in, out), 11), act, in*out, out, (in+1)*out)
+	}
+	P := net.NumParams()
+	fmt.Fprintf(w, "  %-5s  %11s  %-10s  %9s  %7s  %9d\n", "all", "", "", "", "", P)
+
+	predict, evaluate := net.FLOPs()
+	fmt.Fprintln(w)
+	fmt.Fprintf(w, "  params          %d float64 = %s\n", P, bytesText(8*int64(P)))
+	fmt.Fprintf(w, "  FLOPs per row   %s to predict, %s for cost and gradient\n", countText(predict), countText(evaluate))
+
+	opt := nn.ObjectiveOptions{Batch: s.Train.Batch}
+	objBytes := net.TrainingBytes(rows, opt)
+	method, stateWords := optimState(s.Train.Optimizer)
+	stateBytes := 8 * int64(stateWords) * int64(P)
+	fmt.Fprintf(w, "  training on %d rows, %d workers: about %s\n", rows, runtime.GOMAXPROCS(0), bytesText(objBytes+stateBytes))
+	fmt.Fprintf(w, "    data and evaluation  %s (scaled x and y, workspaces, gradient)\n", bytesText(objBytes))
+	fmt.Fprintf(w, "    optimizer (%s)%s %s (%d vectors of %d params)\n", method, strings.Repeat(" ", max(0, 8-len(method))), bytesText(stateBytes), stateWords, P)
+	fmt.Fprintf(w, "    plus the data as read (%s) and Go's collector headroom\n", bytesText(8*int64(rows)*int64(sizes[0]+len(s.Output.Classes))))
+}
+
+// optimState returns the name of the method a spec trains with and the
+// number of params-long vectors it keeps, following nn.TrainingBytes' doc:
+// 4 for every run (current point, gradient, best point, result) plus the
+// method's own.
+func optimState(o spec.Optimizer) (string, int) {
+	own := map[spec.Optimizer]int{spec.GD: 2, spec.CG: 3, spec.LBFGS: 2*10 + 3, spec.Momentum: 4, spec.Adam: 4}
+	if o == 0 {
+		o = spec.LBFGS
+	}
+	return o.String(), 4 + own[o]
+}
+
+func writeModelSummary(w io.Writer, m *nn.Model) {
+	sm := m.Summary
+	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", sm.Method, sm.Iterations, sm.Evaluations, sm.Seconds, sm.Library)
+	fmt.Fprintf(w, "  stopped         %s\n", stopReason(sm.Status))
+	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)
+	if m.Mean != nil {
+		fmt.Fprintf(w, "  scaling         standardized on the training rows\n")
+	} else {
+		fmt.Fprintf(w, "  scaling         none\n")
+	}
+	fmt.Fprintf(w, "  training rows   %d: cost %s, accuracy %s\n", sm.TrainRows, numText(sm.Cost, 1, "%.6g"), numText(sm.TrainAccuracy, 100, "%.2f%%"))
+	if sm.HoldoutRows > 0 {
+		fmt.Fprintf(w, "  holdout rows    %d: cross-entropy %s, accuracy %s\n", sm.HoldoutRows, numText(sm.HoldoutCost, 1, "%.6g"), numText(sm.HoldoutAccuracy, 100, "%.2f%%"))
+	} else {
+		fmt.Fprintf(w, "  holdout rows    none\n")
+	}
+}
+
+func numText(v, mul float64, format string) string {
+	if math.IsNaN(v) {
+		return "not measured"
+	}
+	return fmt.Sprintf(format, v*mul)
+}
+
+// padLeft right-aligns s in a field of width runes.
+func padLeft(s string, width int) string {
+	if n := len([]rune(s)); n < width {
+		return strings.Repeat(" ", width-n) + s
+	}
+	return s
+}
+
+// shortList joins names, cutting the list after n of them.
+func shortList(names []string, n int) string {
+	if len(names) <= n {
+		return strings.Join(names, ", ")
+	}
+	return strings.Join(names[:n], ", ") + fmt.Sprintf(", … %d more", len(names)-n)
+}
+
+// bytesText writes a byte count with a binary unit, e.g. "4.2 KiB".
+func bytesText(b int64) string {
+	const unit = 1024
+	if b < unit {
+		return fmt.Sprintf("%d B", b)
+	}
+	v, i := float64(b), 0
+	for v >= unit && i < 4 {
+		v /= unit
+		i++
+	}
+	return fmt.Sprintf("%.1f %s", v, []string{"B", "KiB", "MiB", "GiB", "TiB"}[i])
+}
+
+// countText writes a large count with thousands separators.
+func countText(v float64) string {
+	s := fmt.Sprintf("%.0f", v)
+	var b strings.Builder
+	for i, r := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteByte(',')
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}

@@ -1,0 +1,137 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/nn"
+)
+
+const predictHelp = `Writes CSV: a header, then one line per data row in the input's order. The
+first column, "class", holds the most probable class; for a multi-label
+model it is named "classes" and holds the classes whose probability is at
+least -threshold, joined with '|' (empty when none). With -probabilities a
+column "p_CLASS" per class follows, with the probability written so that it
+reads back to the same float64.
+
+The input needs the model's feature columns (picked by name when the model
+has feature names, else every column but -label); a label column, if
+present and named by -label (or by the model's feature names leaving it
+out), is ignored. -out is written in full and then renamed into place, so a
+failure never leaves a partial file; without -out the CSV goes to standard
+output.
+`
+
+func runPredict(ctx context.Context, e *env, args []string) error {
+	fs := newFlags("predict", e)
+	modelPath := fs.String("model", "", "model `FILE` written by seine train")
+	dataPath := fs.String("data", "", "CSV `FILE` with a header row; the label column may be absent")
+	out := fs.String("out", "", "write the predictions to `FILE` instead of standard output")
+	probs := fs.Bool("probabilities", false, "add one probability column per class")
+	label := fs.String("label", "", "name of a label `COLUMN` to ignore")
+	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class is predicted (default 0.5)")
+	usage := fs.Usage
+	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+predictHelp) }
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	switch {
+	case *modelPath == "":
+		return usagef("-model is required")
+	case *dataPath == "":
+		return usagef("-data is required")
+	case *threshold != 0 && !(*threshold > 0 && *threshold < 1):
+		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
+	}
+	if *out != "" {
+		if err := refuseOverwrite("-out", *out, "model", *modelPath, "data", *dataPath); err != nil {
+			return err
+		}
+	}
+	m, err := loadModel(*modelPath)
+	if err != nil {
+		return err
+	}
+	if *threshold != 0 && !m.Multilabel() {
+		return usagef("-threshold applies to multi-label models only; %s picks the most probable class", *modelPath)
+	}
+	if *threshold == 0 {
+		*threshold = 0.5
+	}
+	set, err := loadData(*dataPath, dataForModel(m, *label, true))
+	if err != nil {
+		return err
+	}
+	var p mat.Dense
+	m.ProbabilitiesBatch(&p, set.X)
+	write := func(w io.Writer) error { return writePredictions(w, m, &p, *probs, *threshold) }
+	if *out == "" {
+		bw := bufio.NewWriter(e.stdout)
+		if err := write(bw); err != nil {
+			return err
+		}
+		return bw.Flush()
+	}
+	if err := writeAtomic(*out, write); err != nil {
+		return fmt.Errorf("-out %s: %w", *out, err)
+	}
+	fmt.Fprintf(e.stderr, "seine predict: wrote %d rows to %s\n", set.Rows(), *out)
+	return nil
+}
+
+// writePredictions writes the CSV of predict for the probabilities p.
+func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, probs bool, threshold float64) error {
+	cw := csv.NewWriter(w)
+	head := []string{"class"}
+	if m.Multilabel() {
+		head[0] = "classes"
+	}
+	if probs {
+		for _, c := range m.Classes {
+			head = append(head, "p_"+c)
+		}
+	}
+	if err := cw.Write(head); err != nil {
+		return err
+	}
+	rows, k := p.Dims()
+	rec := make([]string, len(head))
+	var set []string
+	for i := 0; i < rows; i++ {
+		row := p.RawRowView(i)
+		if m.Multilabel() {
+			set = set[:0]
+			for j, v := range row {
+				if v >= threshold {
+					set = append(set, m.Classes[j])
+				}
+			}
+			rec[0] = strings.Join(set, "|")
+		} else {
+			best := 0
+			for j := 1; j < k; j++ {
+				if row[j] > row[best] {
+					best = j
+				}
+			}
+			rec[0] = m.Classes[best]
+		}
+		if probs {
+			for j, v := range row {
+				rec[1+j] = strconv.FormatFloat(v, 'g', -1, 64)
+			}
+		}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
