@@ -9,22 +9,13 @@ import (
 	"github.com/seine-ml/seine/spec"
 )
 
-// Tile sizes of gemm. gonum's Dgemm computes a product on one goroutine
-// when C spans fewer than 4 of its 64×64 blocks and otherwise starts
-// goroutines (allocating on every call). gemm hands it tiles of at most
-// 64×192, i.e. 3 blocks, so every product runs serially, allocates nothing,
-// and sums over the inner dimension in one fixed order.
-const (
-	tileRows = 64
-	tileCols = 192
-)
-
 // sub returns the r×c submatrix of g whose top-left element is g[i, j].
 func sub(g blas64.General, i, j, r, c int) blas64.General {
 	return blas64.General{Rows: r, Cols: c, Stride: g.Stride, Data: g.Data[i*g.Stride+j : (i+r-1)*g.Stride+j+c]}
 }
 
-// gemm computes C = alpha·op(A)·op(B) + beta·C tile by tile (see tileRows).
+// gemm computes C = alpha·op(A)·op(B) + beta·C tile by tile, with tiles
+// of at most tileRows × tileCols of C (see tile.go and blas_openblas.go).
 func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
 	if c.Rows == 0 || c.Cols == 0 {
 		return
