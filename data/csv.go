@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"slices"
@@ -169,6 +170,14 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		labelCol = len(names) - 1
 	}
 	readLabels := !opt.NoLabel
+	if labelCol >= 0 && readLabels && !opt.Multilabel && slices.Contains(opt.Classes, names[labelCol]) {
+		// A label cell that is a known class beside feature cells that are
+		// all numbers: the first row is data, not a header.
+		rest := slices.Delete(slices.Clone(names), labelCol, labelCol+1)
+		if len(rest) > 0 && allNumbers(rest) {
+			return nil, &Error{Line: hLine, Err: describe(ErrNoHeader, "the first row looks like data (numbers and the class %s); a header row naming the columns is probably missing", shown(names[labelCol]))}
+		}
+	}
 
 	var feat []int
 	if opt.Features != nil {
@@ -354,7 +363,12 @@ func (rd *recordReader) next(row int) ([]string, error) {
 	}
 	var pe *csv.ParseError
 	if errors.As(err, &pe) && (rd.lim.err == nil || pe.Line < rd.lim.errLine) {
-		return nil, &Error{Line: pe.Line, Row: row, Err: describe(ErrQuote, "byte %d: %v (RFC 4180: a field in quotes ends at a quote, and a quote inside it is doubled)", pe.Column, pe.Err)}
+		where := fmt.Sprintf("byte %d", pe.Column)
+		if pe.StartLine != pe.Line {
+			// A quote left open runs on to a later line; point at its start too.
+			where += fmt.Sprintf(", in a record that starts on line %d", pe.StartLine)
+		}
+		return nil, &Error{Line: pe.Line, Row: row, Err: describe(ErrQuote, "%s: %v (RFC 4180: a field in quotes ends at a quote, and a quote inside it is doubled)", where, pe.Err)}
 	}
 	if rd.lim.err != nil {
 		e := *rd.lim.err
