@@ -38,7 +38,11 @@ func loadSpec(path string) (*spec.Network, error) {
 func prefixLines(path string, err error) error {
 	lines := strings.Split(err.Error(), "\n")
 	for i, l := range lines {
-		lines[i] = path + ":" + l
+		if l != "" && l[0] >= '0' && l[0] <= '9' {
+			lines[i] = path + ":" + l // "path:3:17: ..."
+		} else {
+			lines[i] = path + ": " + l // a problem without a position
+		}
 	}
 	return &wrapped{msg: strings.Join(lines, "\n"), err: err}
 }
