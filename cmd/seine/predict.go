@@ -17,7 +17,7 @@ import (
 const predictHelp = `Writes CSV: a header, then one line per data row in the input's order. The
 first column, "class", holds the most probable class; for a multi-label
 model it is named "classes" and holds the classes whose probability is at
-least -threshold, joined with '|' (empty when none). With -probabilities a
+least -threshold, joined with '|' ("" when none). With -probabilities a
 column "p_CLASS" per class follows, with the probability written so that it
 reads back to the same float64.
 
@@ -127,6 +127,16 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, probs bool, thresh
 			for j, v := range row {
 				rec[1+j] = strconv.FormatFloat(v, 'g', -1, 64)
 			}
+		}
+		if len(rec) == 1 && rec[0] == "" {
+			// A lone empty field would make a blank line, which CSV
+			// readers skip (RFC 4180 readers differ; Go's skips it): quote
+			// it so that the row count stays that of the input.
+			cw.Flush()
+			if _, err := io.WriteString(w, "\"\"\n"); err != nil {
+				return err
+			}
+			continue
 		}
 		if err := cw.Write(rec); err != nil {
 			return err
