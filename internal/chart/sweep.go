@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"sort"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -26,10 +27,17 @@ import (
 // from Lo to Hi (for example the lowest and highest value over folds).
 // Points with a non-finite value are dropped. XLabel defaults to
 // "penalty strength λ" and YLabel to "cost (nats)".
+//
+// Without λ = 0 the axis spans the values given, a quarter decade beyond
+// each end, with a labelled tick at each value, which suits other
+// positive parameters too (units of a layer: set XLabel). With LogY the y
+// axis is logarithmic and values ≤ 0 are dropped; it keeps a run-away
+// value (the validation cost at λ = 0, say) from flattening the rest.
 type SweepPlot struct {
 	Title, XLabel, YLabel string
 	Lambda                []float64 // penalty strengths, ≥ 0
 	Train, Valid          []float64 // one value per λ, or empty
+	LogY                  bool      // logarithmic y axis
 
 	TrainLo, TrainHi, ValidLo, ValidHi []float64 // optional spread
 }
@@ -75,6 +83,14 @@ func (s SweepPlot) Write(w io.Writer, f Format) error {
 		xlo = zero / math.Pow(10, 0.25)
 		xhi = math.Max(math.Pow(10, math.Ceil(math.Log10(maxPos))), minPos*10)
 	}
+	hasZero := false
+	for _, l := range s.Lambda {
+		hasZero = hasZero || l == 0
+	}
+	if !hasZero && maxPos > 0 {
+		q := math.Pow(10, 0.25)
+		xlo, xhi = minPos/q, maxPos*q
+	}
 	xpos := func(l float64) float64 {
 		if l == 0 {
 			return zero
@@ -96,6 +112,7 @@ func (s SweepPlot) Write(w io.Writer, f Format) error {
 	}
 	p := newPlot("", xlabel, ylabel)
 	var entries []entry
+	ylo, yhi := math.Inf(1), math.Inf(-1)
 	for k, c := range []struct {
 		name      string
 		v, lo, hi []float64
@@ -110,16 +127,18 @@ func (s SweepPlot) Write(w io.Writer, f Format) error {
 		var errs plotter.YErrors
 		for _, i := range order {
 			l, v := s.Lambda[i], c.v[i]
-			if !finite(v) {
+			if !finite(v) || (s.LogY && v <= 0) {
 				continue
 			}
+			ylo, yhi = math.Min(ylo, v), math.Max(yhi, v)
 			pt := plotter.XY{X: xpos(l), Y: v}
 			if l == 0 {
 				zeroPts = append(zeroPts, pt)
 			} else {
 				pos = append(pos, pt)
 			}
-			if len(c.lo) > 0 && finite(c.lo[i]) && finite(c.hi[i]) {
+			if len(c.lo) > 0 && finite(c.lo[i]) && finite(c.hi[i]) && (!s.LogY || c.lo[i] > 0) {
+				ylo, yhi = math.Min(ylo, c.lo[i]), math.Max(yhi, c.hi[i])
 				bars = append(bars, pt)
 				errs = append(errs, struct{ Low, High float64 }{math.Max(0, v-c.lo[i]), math.Max(0, c.hi[i]-v)})
 			}
@@ -141,22 +160,24 @@ func (s SweepPlot) Write(w io.Writer, f Format) error {
 			p.Add(eb)
 		}
 	}
-	if len(entries) == 0 {
-		return fmt.Errorf("chart: sweep: no finite values: %w", ErrEmpty)
+	if len(entries) == 0 || math.IsInf(ylo, 1) {
+		return fmt.Errorf("chart: sweep: no finite values (positive ones with LogY): %w", ErrEmpty)
 	}
 
 	p.X.Scale = plot.LogScale{}
 	p.X.Min, p.X.Max = xlo, xhi
-	hasZero := false
-	for _, l := range s.Lambda {
-		hasZero = hasZero || l == 0
+	if s.LogY {
+		logAxis(&p.Y, ylo, yhi)
 	}
-	if maxPos > 0 {
+	switch {
+	case !hasZero && maxPos > 0:
+		p.X.Tick.Marker = valueTicks(s.Lambda)
+	case maxPos > 0:
 		p.X.Tick.Marker = zeroTicks{zero: zero, hasZero: hasZero, first: minPos}
 		if hasZero {
 			p.Add(breakMark{x: zero * math.Sqrt(10)})
 		}
-	} else {
+	default:
 		p.X.Tick.Marker = plot.ConstantTicks{{Value: 1, Label: "0"}}
 	}
 
@@ -165,6 +186,19 @@ func (s SweepPlot) Write(w io.Writer, f Format) error {
 		p.Draw(fg.body(dc))
 		return nil
 	})
+}
+
+// valueTicks labels each distinct value of v.
+func valueTicks(v []float64) plot.ConstantTicks {
+	w := append([]float64(nil), v...)
+	sort.Float64s(w)
+	var ticks plot.ConstantTicks
+	for i, x := range w {
+		if i == 0 || x != w[i-1] {
+			ticks = append(ticks, plot.Tick{Value: x, Label: strconv.FormatFloat(x, 'g', 4, 64)})
+		}
+	}
+	return ticks
 }
 
 // errorBars joins points and their error sizes for plotter.NewYErrorBars.
