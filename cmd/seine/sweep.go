@@ -1,0 +1,320 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/seine-ml/seine/diag"
+	"github.com/seine-ml/seine/internal/chart"
+	"github.com/seine-ml/seine/optim"
+)
+
+const sweepHelp = `Trains the spec at each penalty strength λ of -l2 (penalty.l2; every other
+setting as in the spec) with k-fold stratified cross-validation (-folds,
+default 5) or one stratified holdout split (-holdout), the same folds and
+initial params for every λ. Costs are mean cross-entropy without the
+penalty, in nats, on the training rows of each fit and on its validation
+rows, so that both read on one scale; accuracy is the share of rows
+classified right. Each figure is the mean over the folds with the lowest
+and highest fold in brackets. The strength with the lowest mean
+validation cost is named at the end.
+
+-units sweeps the units of the first hidden layer the same way, at the best
+λ found when -l2 is given too, else at the spec's λ. -plot draws validation
+and training cost against λ (log axis, λ = 0 at the left edge), with the
+fold range as error bars; with -units as well, the units sweep goes to FILE
+with "-units" before the extension. -json writes an array with one object
+per sweep: param ("l2" or "units"), folds, holdout, best (index), best_value,
+points (l2, units, train_cost, valid_cost, train_accuracy,
+valid_accuracy, each {mean, sd, min, max}).
+`
+
+func runSweep(ctx context.Context, e *env, args []string) error {
+	fs := newFlags("sweep", e)
+	specPath := fs.String("spec", "", "spec `FILE` (YAML)")
+	dataPath := fs.String("data", "", "labelled CSV `FILE`")
+	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
+	l2List := fs.String("l2", "", "comma-separated penalty strengths λ ≥ 0, e.g. 0,0.001,0.01,0.1,1,10")
+	unitsList := fs.String("units", "", "comma-separated unit counts of the first hidden layer, e.g. 8,16,32")
+	folds := fs.Int("folds", 0, "number `K` ≥ 2 of stratified folds (default 5 unless -holdout)")
+	holdout := fs.Float64("holdout", 0, "validate on one stratified split with this fraction of rows instead of folds")
+	seed := fs.Uint64("seed", 0, "seed of the folds and the initial params (default the spec's init.seed)")
+	iterations := fs.Int("iterations", 0, "iteration limit of each fit (default the spec's train.iterations)")
+	noScale := fs.Bool("noscale", false, "train on the features as they are, without standardising them")
+	asJSON := fs.Bool("json", false, "write the sweeps as a JSON array")
+	plot := fs.String("plot", "", "draw cost against λ to `FILE`.png or .svg")
+	usage := fs.Usage
+	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+sweepHelp) }
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if *specPath == "" {
+		return usagef("-spec is required")
+	}
+	if *dataPath == "" {
+		return usagef("-data is required")
+	}
+	if *l2List == "" && *unitsList == "" {
+		return usagef("give -l2 LIST, -units LIST or both")
+	}
+	lambdas, err := parseFloats("-l2", *l2List)
+	if err != nil {
+		return err
+	}
+	for i, l := range lambdas {
+		if !(l >= 0) || math.IsInf(l, 1) {
+			return usagef("-l2: item %d is %g; want a finite number ≥ 0", i+1, l)
+		}
+	}
+	units, err := parseInts("-units", *unitsList)
+	if err != nil {
+		return err
+	}
+	switch {
+	case *folds != 0 && *holdout != 0:
+		return usagef("give -folds or -holdout, not both")
+	case *folds < 0 || *folds == 1:
+		return usagef("-folds %d: want ≥ 2", *folds)
+	case *holdout != 0 && !(*holdout > 0 && *holdout < 1):
+		return usagef("-holdout %g: want a fraction in (0, 1)", *holdout)
+	case *iterations < 0:
+		return usagef("-iterations %d: want ≥ 0", *iterations)
+	}
+	format, err := plotFlag("-plot", *plot, "spec", *specPath, "data", *dataPath)
+	if err != nil {
+		return err
+	}
+	s, err := loadSpec(*specPath)
+	if err != nil {
+		return err
+	}
+	if len(units) > 0 && len(s.Hidden) == 0 {
+		return usagef("-units: %s has no hidden layer whose units could vary", *specPath)
+	}
+	set, err := loadData(*dataPath, dataFor(s, *label))
+	if err != nil {
+		return err
+	}
+	cfg := diag.SweepConfig{
+		Folds: *folds, Holdout: *holdout, Seed: *seed, NoScale: *noScale,
+		Limits: optim.Limits{Iterations: *iterations},
+	}
+	name := problemName(s, *dataPath)
+	var sweeps []*diag.Sweep
+	if len(lambdas) > 0 {
+		sw, err := diag.SweepPenalty(ctx, s, set, lambdas, cfg)
+		if err != nil {
+			return err
+		}
+		sweeps = append(sweeps, sw)
+	}
+	if len(units) > 0 {
+		su := s
+		if len(sweeps) > 0 {
+			su = s.Clone()
+			su.Penalty.L2 = sweeps[0].Points[sweeps[0].Best].Lambda
+		}
+		sw, err := diag.SweepUnits(ctx, su, set, units, cfg)
+		if err != nil {
+			return err
+		}
+		sweeps = append(sweeps, sw)
+	}
+	for _, sw := range sweeps {
+		for _, w := range sw.Warnings {
+			fmt.Fprintf(e.stderr, "sweep: warning: %s\n", w)
+		}
+	}
+
+	if *asJSON {
+		if err := writeSweepJSON(e.stdout, sweeps); err != nil {
+			return err
+		}
+	} else {
+		for i, sw := range sweeps {
+			if i > 0 {
+				fmt.Fprintln(e.stdout)
+			}
+			writeSweepTable(e.stdout, name, set.Rows(), sw)
+		}
+	}
+	if *plot != "" {
+		for i, sw := range sweeps {
+			path := *plot
+			if i > 0 {
+				path = suffixed(*plot, "-units")
+			}
+			sp := sweepPlot(name, sw)
+			if err := writeAtomic(path, func(w io.Writer) error { return sp.Write(w, format) }); err != nil {
+				return fmt.Errorf("-plot %s: %w", path, err)
+			}
+		}
+	}
+	return nil
+}
+
+// parseFloats reads a comma-separated list of numbers; "" gives nil.
+func parseFloats(flagName, list string) ([]float64, error) {
+	if strings.TrimSpace(list) == "" {
+		return nil, nil
+	}
+	var out []float64
+	for i, item := range strings.Split(list, ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(item), 64)
+		if err != nil {
+			return nil, usagef("%s: item %d is %q; want a number", flagName, i+1, strings.TrimSpace(item))
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+// parseInts reads a comma-separated list of integers ≥ 1; "" gives nil.
+func parseInts(flagName, list string) ([]int, error) {
+	if strings.TrimSpace(list) == "" {
+		return nil, nil
+	}
+	var out []int
+	for i, item := range strings.Split(list, ",") {
+		v, err := strconv.Atoi(strings.TrimSpace(item))
+		if err != nil || v < 1 {
+			return nil, usagef("%s: item %d is %q; want a whole number ≥ 1", flagName, i+1, strings.TrimSpace(item))
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+// sweepX returns the swept value of point p.
+func sweepX(sw *diag.Sweep, p diag.SweepPoint) float64 {
+	if sw.Param == diag.HiddenUnits {
+		return float64(p.Units)
+	}
+	return p.Lambda
+}
+
+func statText(st diag.Stat, format string, folds int) string {
+	if folds == 1 {
+		return num(st.Mean, format)
+	}
+	return num(st.Mean, format) + " (" + num(st.Min, format) + "–" + num(st.Max, format) + ")"
+}
+
+func writeSweepTable(w io.Writer, name string, rows int, sw *diag.Sweep) {
+	how := fmt.Sprintf("%d-fold stratified cross-validation", sw.Folds)
+	if sw.Holdout > 0 {
+		how = fmt.Sprintf("one stratified holdout of %g of the rows", sw.Holdout)
+	}
+	what := "penalty strength λ (penalty.l2)"
+	col := "λ"
+	if sw.Param == diag.HiddenUnits {
+		what = fmt.Sprintf("units of the first hidden layer (at λ = %g)", sw.Points[0].Lambda)
+		col = "units"
+	}
+	fmt.Fprintf(w, "%s: sweep of the %s; %d rows, %s\n\n", name, what, rows, how)
+	out := [][]string{{col, "train cost", "valid cost", "train acc", "valid acc", ""}}
+	for i, p := range sw.Points {
+		mark := ""
+		if i == sw.Best {
+			mark = "← lowest validation cost"
+		}
+		out = append(out, []string{
+			strconv.FormatFloat(sweepX(sw, p), 'g', -1, 64),
+			statText(p.TrainCost, "%.4f", sw.Folds),
+			statText(p.ValidCost, "%.4f", sw.Folds),
+			statText(p.TrainAccuracy, "%.3f", sw.Folds),
+			statText(p.ValidAccuracy, "%.3f", sw.Folds),
+			mark,
+		})
+	}
+	writeColumns(w, out, 0, true)
+	fmt.Fprintln(w)
+	if sw.Folds > 1 {
+		fmt.Fprintf(w, "Mean over the %d folds, lowest–highest fold in brackets. ", sw.Folds)
+	}
+	fmt.Fprintln(w, "Costs: cross-entropy without the penalty (nats), on the training and the validation rows of each fit.")
+	b := sw.Points[sw.Best]
+	fmt.Fprintf(w, "Best: %s = %s (mean validation cost %.4f nats).\n", col, strconv.FormatFloat(sweepX(sw, b), 'g', -1, 64), b.ValidCost.Mean)
+}
+
+type jsonStat struct {
+	Mean jsonNum `json:"mean"`
+	SD   jsonNum `json:"sd"`
+	Min  jsonNum `json:"min"`
+	Max  jsonNum `json:"max"`
+}
+
+func toJSONStat(s diag.Stat) jsonStat {
+	return jsonStat{jsonNum(s.Mean), jsonNum(s.SD), jsonNum(s.Min), jsonNum(s.Max)}
+}
+
+type sweepPointJSON struct {
+	L2            float64  `json:"l2"`
+	Units         int      `json:"units"`
+	TrainCost     jsonStat `json:"train_cost"`
+	ValidCost     jsonStat `json:"valid_cost"`
+	TrainAccuracy jsonStat `json:"train_accuracy"`
+	ValidAccuracy jsonStat `json:"valid_accuracy"`
+}
+
+type sweepJSON struct {
+	Param     string           `json:"param"`
+	Folds     int              `json:"folds"`
+	Holdout   float64          `json:"holdout"`
+	Best      int              `json:"best"`
+	BestValue float64          `json:"best_value"`
+	Points    []sweepPointJSON `json:"points"`
+}
+
+func writeSweepJSON(w io.Writer, sweeps []*diag.Sweep) error {
+	out := []sweepJSON{}
+	for _, sw := range sweeps {
+		sj := sweepJSON{Param: sw.Param.String(), Folds: sw.Folds, Holdout: sw.Holdout, Best: sw.Best, BestValue: sweepX(sw, sw.Points[sw.Best])}
+		for _, p := range sw.Points {
+			sj.Points = append(sj.Points, sweepPointJSON{
+				L2: p.Lambda, Units: p.Units,
+				TrainCost: toJSONStat(p.TrainCost), ValidCost: toJSONStat(p.ValidCost),
+				TrainAccuracy: toJSONStat(p.TrainAccuracy), ValidAccuracy: toJSONStat(p.ValidAccuracy),
+			})
+		}
+		out = append(out, sj)
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(out)
+}
+
+func sweepPlot(name string, sw *diag.Sweep) chart.SweepPlot {
+	sp := chart.SweepPlot{Title: name}
+	if sw.Param == diag.HiddenUnits {
+		sp.XLabel = "units of the first hidden layer (count)"
+		sp.Title = fmt.Sprintf("%s, λ = %g", name, sw.Points[0].Lambda)
+	}
+	for _, p := range sw.Points {
+		sp.Lambda = append(sp.Lambda, sweepX(sw, p))
+		sp.Train = append(sp.Train, p.TrainCost.Mean)
+		sp.Valid = append(sp.Valid, p.ValidCost.Mean)
+		if sw.Folds > 1 {
+			sp.TrainLo, sp.TrainHi = append(sp.TrainLo, p.TrainCost.Min), append(sp.TrainHi, p.TrainCost.Max)
+			sp.ValidLo, sp.ValidHi = append(sp.ValidLo, p.ValidCost.Min), append(sp.ValidHi, p.ValidCost.Max)
+		}
+	}
+	sp.YLabel = "cross-entropy, no penalty (nats)"
+	// A log y axis when the values span more than a decade, so that a
+	// run-away validation cost (at λ = 0, say) does not flatten the rest.
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range [][]float64{sp.Train, sp.Valid, sp.TrainLo, sp.TrainHi, sp.ValidLo, sp.ValidHi} {
+		for _, x := range v {
+			if x > 0 {
+				lo, hi = math.Min(lo, x), math.Max(hi, x)
+			}
+		}
+	}
+	sp.LogY = hi > 10*lo
+	return sp
+}
