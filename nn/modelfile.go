@@ -378,9 +378,19 @@ func Load(path string) (*Model, error) {
 		return nil, fmt.Errorf("nn: %w", err)
 	}
 	defer f.Close()
+	return readModelFile(f, path)
+}
+
+// readModelFile reads the opened model file f. A regular file whose size is
+// over DefaultMaxModelBytes is refused from its Stat, before any of it is
+// read; other files are bounded while reading, as by ReadModel.
+func readModelFile(f fs.File, name string) (*Model, error) {
+	if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() && fi.Size() > DefaultMaxModelBytes {
+		return nil, fmt.Errorf("%s: %w: %d bytes, more than %d", name, ErrTooLarge, fi.Size(), int64(DefaultMaxModelBytes))
+	}
 	m, err := ReadModel(f)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
+		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	return m, nil
 }
@@ -397,9 +407,5 @@ func LoadFS(fsys fs.FS, name string) (*Model, error) {
 		return nil, fmt.Errorf("nn: %w", err)
 	}
 	defer f.Close()
-	m, err := ReadModel(f)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	return m, nil
+	return readModelFile(f, name)
 }
