@@ -222,3 +222,42 @@ func TestReadModelNestingBomb(t *testing.T) {
 	require.ErrorIs(t, err, ErrFormat)
 	assert.NotContains(t, err.Error(), "nesting")
 }
+
+// endless is a reader of endless spaces that counts what it hands out.
+type endless struct{ n int64 }
+
+func (e *endless) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = ' '
+	}
+	e.n += int64(len(p))
+	return len(p), nil
+}
+
+// The size limit holds for readers without an end and for files: a stream
+// is cut one byte past the limit, and a file over the limit is refused from
+// its size before it is read. Before the size check in Load, a 300 MB file
+// was read to 256 MiB (about 600 MB of allocations) before it was refused.
+func TestReadModelLimitStopsReading(t *testing.T) {
+	r := &endless{}
+	_, err := ReadModelLimit(r, 1<<20)
+	require.ErrorIs(t, err, ErrTooLarge)
+	// ReadAll asks for at least 512 bytes at a time: at most that much
+	// past the limit is read.
+	assert.LessOrEqual(t, r.n, int64(1<<20+1+512))
+
+	path := filepath.Join(t.TempDir(), "huge.seine.json")
+	f, err := os.Create(path)
+	require.NoError(t, err)
+	require.NoError(t, f.Truncate(DefaultMaxModelBytes+1)) // sparse: no disk used
+	require.NoError(t, f.Close())
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	_, err = Load(path)
+	runtime.ReadMemStats(&after)
+	require.ErrorIs(t, err, ErrTooLarge)
+	assert.Contains(t, err.Error(), path)
+	assert.Less(t, after.TotalAlloc-before.TotalAlloc, uint64(1<<20), "bytes allocated to refuse the file")
+	_, err = LoadFS(os.DirFS(filepath.Dir(path)), "huge.seine.json")
+	require.ErrorIs(t, err, ErrTooLarge)
+}
