@@ -58,9 +58,10 @@ const Version = "0.1.0"
 
 // rowScratch is the per-call space of a single-row prediction.
 type rowScratch struct {
-	ws  *Workspace
-	in  []float64 // scaled input
-	out []float64 // output units
+	ws    *Workspace
+	in    []float64 // scaled input
+	out   []float64 // output units
+	probs []float64 // class probabilities
 }
 
 // ErrModel is wrapped by errors about a model's contents.
@@ -123,7 +124,7 @@ func (m *Model) init() error {
 	}
 	m.net = net
 	m.pool.New = func() any {
-		return &rowScratch{ws: net.NewWorkspace(1), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs())}
+		return &rowScratch{ws: net.NewWorkspace(1), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
 	}
 	return nil
 }
@@ -153,22 +154,23 @@ func (m *Model) scale(dst, x []float64) {
 	}
 }
 
-// outputs runs one row through the net and writes the class probabilities
-// into dst (len NumClasses). For the binary sigmoid net the one unit is the
-// probability p of Classes[1], and dst = [1−p, p].
-func (m *Model) outputs(dst, x []float64) {
+// classProbs runs one raw row through the net and returns pooled scratch
+// whose probs hold the class probabilities; the caller puts it back. For
+// the binary sigmoid net the one unit is the probability p of Classes[1],
+// and probs = [1−p, p].
+func (m *Model) classProbs(x []float64) *rowScratch {
 	if len(x) != m.net.Inputs() {
 		panic(fmt.Sprintf("nn: row has %d features, the model takes %d", len(x), m.net.Inputs()))
 	}
 	sc := m.pool.Get().(*rowScratch)
 	m.scale(sc.in, x)
 	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
-	if len(sc.out) == 1 && len(dst) == 2 {
-		dst[0], dst[1] = 1-sc.out[0], sc.out[0]
+	if len(sc.out) == 1 && len(sc.probs) == 2 {
+		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
 	} else {
-		copy(dst, sc.out)
+		copy(sc.probs, sc.out)
 	}
-	m.pool.Put(sc)
+	return sc
 }
 
 // Probabilities writes the probability of each class for the raw feature row
@@ -182,22 +184,19 @@ func (m *Model) Probabilities(dst, x []float64) []float64 {
 		dst = make([]float64, k)
 	}
 	dst = dst[:k]
-	m.outputs(dst, x)
+	sc := m.classProbs(x)
+	copy(dst, sc.probs)
+	m.pool.Put(sc)
 	return dst
 }
 
 // Predict returns the index in Classes of the most probable class of the raw
 // feature row x (the first one on a tie). It allocates nothing after warm-up.
 func (m *Model) Predict(x []float64) int {
-	var buf [16]float64
-	p := buf[:0]
-	if k := len(m.Classes); k <= len(buf) {
-		p = buf[:k]
-	} else {
-		p = make([]float64, k)
-	}
-	m.outputs(p, x)
-	return argmax(p)
+	sc := m.classProbs(x)
+	k := argmax(sc.probs)
+	m.pool.Put(sc)
+	return k
 }
 
 func argmax(p []float64) int {
@@ -215,19 +214,13 @@ func argmax(p []float64) int {
 // multi-label models; for a softmax model it returns the classes above the
 // threshold just the same. A threshold of 0.5 is the usual choice.
 func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
-	var buf [16]float64
-	p := buf[:0]
-	if k := len(m.Classes); k <= len(buf) {
-		p = buf[:k]
-	} else {
-		p = make([]float64, k)
-	}
-	m.outputs(p, x)
-	for i, v := range p {
+	sc := m.classProbs(x)
+	for i, v := range sc.probs {
 		if v >= threshold {
 			dst = append(dst, i)
 		}
 	}
+	m.pool.Put(sc)
 	return dst
 }
 
