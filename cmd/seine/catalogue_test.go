@@ -225,6 +225,7 @@ func TestCatalogue(t *testing.T) {
 	for _, f := range []struct{ file, want string }{
 		{"model_flipped_byte.seine.json", "checksum"},
 		{"model_count_lies.seine.json", "params count 28, the spec needs 27"},
+		{"model_data_short.seine.json", "params data holds 208 bytes, count 27 needs 216"},
 		{"model_future_version.seine.json", "version 2"},
 		{"model_duplicate_key.seine.json", `duplicate key "version"`},
 	} {
