@@ -195,6 +195,8 @@ func TestCatalogue(t *testing.T) {
 		{"spec zero inputs", "train", bad("spec_zero_inputs.yaml"), nil, 1, []string{"{file}:2:9: inputs:", "got 0"}},
 		{"spec unknown activation", "train", bad("spec_unknown_activation.yaml"), nil, 1, []string{"{file}:5:17: hidden[0].activation:", `"tanhh"`}},
 		{"spec empty", "train", bad("spec_empty.yaml"), nil, 1, []string{"{file}: empty spec"}},
+		// A spec that trains into divergence: the model the user had stays.
+		{"spec diverges", "train", bad("spec_diverges.yaml"), nil, 1, []string{"diverged", "was not written"}},
 
 		// CSV read as RFC 4180 says: a BOM is skipped, CRLF ends a record
 		// like LF (RFC 4180 §2.1 uses CRLF), and a quoted field may hold
