@@ -102,6 +102,13 @@ func TestFuzzModelCorpus(t *testing.T) {
 		require.NoError(t, err, "missing seed; run with -update-fuzz-corpus")
 		assert.Equal(t, string(corpusFile(b)), string(got), "seed %s is stale; run with -update-fuzz-corpus", name)
 		assert.Less(t, len(got), 20<<10, name)
+		// The seeds mean what their names say.
+		_, err = ReadModel(bytes.NewReader(b))
+		if strings.HasPrefix(name, "valid_") {
+			assert.NoError(t, err, name)
+		} else {
+			assert.True(t, err != nil && isReadError(err), "%s: %v", name, err)
+		}
 	}
 }
 
