@@ -50,6 +50,8 @@ type runner struct {
 	haveBest  bool
 	keepLast  bool // best = last completed iteration (Momentum, Adam)
 
+	refF    float64 // reference cost of the Blowup rule
+	haveRef bool
 	evals   float64
 	iter    int
 	atStart bool  // evaluating at x0: non-finite values are ErrNotFiniteStart
@@ -112,6 +114,7 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 			Elapsed: time.Since(r.start), Status: Diverged}, r.err
 	}
 	if st == running && !r.keepLast {
+		r.refF, r.haveRef = r.f, true
 		r.updateBest()
 		if r.gradConverged() {
 			st = GradConverged
@@ -136,8 +139,16 @@ func Minimize(ctx context.Context, f Objective, x0 []float64, m Method, lim Limi
 			Elapsed:     time.Since(r.start),
 		}
 		r.trace = append(r.trace, s)
-		r.updateBest()
-		if lim.Observer != nil && lim.Observer(s, r.x) {
+		blown := r.blownUp()
+		if !blown {
+			r.updateBest()
+		}
+		stop := lim.Observer != nil && lim.Observer(s, r.x)
+		if blown {
+			st = Diverged
+			break
+		}
+		if stop {
 			st = Stopped
 			break
 		}
@@ -180,6 +191,29 @@ func newRunner(ctx context.Context, f Objective, x0 []float64, lim Limits) *runn
 		atStart:   true,
 		trace:     make([]Step, 0, min(lim.Iterations, 1024)),
 	}
+}
+
+// Blowup is the factor over the reference cost beyond which a run counts as
+// diverged: a cost above Blowup·max(1, |f_ref|) stops the run with status
+// Diverged, where f_ref is f(x0) for the full-batch methods and the first
+// epoch's cost for Momentum and Adam. A step far too long can first jump to
+// huge but finite costs, where units saturate and the gradient is tiny; that
+// must read as divergence, not convergence. Line-search methods never
+// accept a cost above f(x0), so the rule only ever stops fixed-step and
+// mini-batch runs.
+const Blowup = 1e3
+
+// blownUp applies the Blowup rule to the iteration just recorded.
+func (r *runner) blownUp() bool {
+	if !r.haveRef {
+		r.refF, r.haveRef = r.f, true
+		return false
+	}
+	if r.f > Blowup*math.Max(1, math.Abs(r.refF)) {
+		r.err = fmt.Errorf("%w: cost %.4g at iteration %d is more than %g times the starting cost %.4g", ErrDiverged, r.f, r.iter, Blowup, r.refF)
+		return true
+	}
+	return false
 }
 
 // updateBest records the current point as the best one when it is.

@@ -318,3 +318,26 @@ func (p quadNoAlloc) Eval(grad, x []float64) float64 {
 	}
 	return f
 }
+
+// A fixed step far too long makes the cost of ½x² grow fourfold per
+// iteration (x ← x − 3x = −2x) while staying finite for hundreds of
+// iterations; the Blowup rule calls it diverged once the cost passes 1000
+// times the start: 4^k > 1000 at k = 5.
+func TestBlowupIsDivergence(t *testing.T) {
+	f := Func(func(grad, x []float64) float64 {
+		if grad != nil {
+			grad[0] = x[0]
+		}
+		return 0.5 * x[0] * x[0]
+	})
+	res, err := Minimize(context.Background(), f, []float64{3}, &GradientDescent{Step: 3}, Limits{})
+	if !errors.Is(err, ErrDiverged) || res.Status != Diverged {
+		t.Fatalf("status %v, err %v; want Diverged", res.Status, err)
+	}
+	if res.Iterations != 5 || len(res.Trace) != 5 {
+		t.Errorf("stopped after %d iterations with %d steps traced, want 5 and 5", res.Iterations, len(res.Trace))
+	}
+	if res.X[0] != 3 {
+		t.Errorf("best point %v, want x0 = 3 (every later cost is higher)", res.X[0])
+	}
+}

@@ -134,11 +134,6 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
-	guard, err := newDivergenceGuard(s, trainSet, cfg.Start, cfg.NoScale)
-	if err != nil {
-		return fmt.Errorf("%s: %w", f.data, err)
-	}
-	cfg.Start = guard.start
 	limit := s.Train.Iterations
 	if limit == 0 {
 		limit = defaultIterations
@@ -149,7 +144,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	} else {
 		pr = newProgress(e.stderr, e.terminal, limit)
 	}
-	cfg.Progress = func(p train.Progress) bool { return guard.check(p) || pr.step(p) }
+	cfg.Progress = pr.step
 	if f.checkpoint != "" {
 		every := f.every
 		if every == 0 {
@@ -163,11 +158,8 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	for _, w := range resWarnings(res) {
 		fmt.Fprintf(e.stderr, "seine train: warning: %s\n", w)
 	}
-	if err == nil && guard.diverged {
-		err = fmt.Errorf("%w: cost %g at iteration %d", optim.ErrDiverged, guard.cost, guard.iter)
-	}
 	if err != nil {
-		return f.failure(e, s, guard, res, err, hold != nil)
+		return f.failure(e, s, res, err, hold != nil)
 	}
 	if err := res.Model.Save(f.out); err != nil {
 		return fmt.Errorf("-out %s: %w", f.out, unwrapSave(err))
@@ -243,7 +235,7 @@ func (f *trainFlags) override(s *spec.Network, stderr io.Writer) {
 
 // failure turns an error of train.Train into the command's outcome: an
 // interrupted run saves what it has; anything else writes nothing.
-func (f *trainFlags) failure(e *env, s *spec.Network, guard *divergenceGuard, res *train.Result, err error, hasHold bool) error {
+func (f *trainFlags) failure(e *env, s *spec.Network, res *train.Result, err error, hasHold bool) error {
 	interrupted := errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)
 	switch {
 	case interrupted && (res == nil || res.Model == nil || res.Run.Iterations == 0):
@@ -255,15 +247,15 @@ func (f *trainFlags) failure(e *env, s *spec.Network, guard *divergenceGuard, re
 		writeTrainSummary(e.stdout, f.out, res, hasHold, f.keepBest)
 		return fmt.Errorf("interrupted at iteration %d: saved the model of iteration %d to %s", res.Run.Iterations, res.BestIter, f.out)
 	case errors.Is(err, optim.ErrDiverged):
-		it := guard.iter
-		if !guard.diverged && res != nil {
-			it = res.Run.Iterations + 1
+		detail := err.Error()
+		if i := strings.Index(detail, optim.ErrDiverged.Error()+": "); i >= 0 {
+			detail = detail[i+len(optim.ErrDiverged.Error())+2:]
 		}
 		hint := "a smaller -rate"
 		if o := s.Train.Optimizer; o == 0 || o == spec.CG || o == spec.LBFGS {
 			hint = "a larger penalty or standardized features"
 		}
-		return fmt.Errorf("diverged at iteration %d: the cost grew without bound or became NaN; try %s; %s was not written", it, hint, f.out)
+		return fmt.Errorf("diverged (%s); try %s; %s was not written", detail, hint, f.out)
 	case errors.Is(err, optim.ErrNotFiniteStart):
 		return fmt.Errorf("the cost or gradient at the initial params is not finite (try -standardize or a smaller init scale); %s was not written", f.out)
 	}
@@ -288,51 +280,6 @@ func unwrapSave(err error) error {
 		return u
 	}
 	return err
-}
-
-// divergenceGuard stops a run whose cost has blown up. optim stops on a
-// NaN or infinite cost, but a fixed-step method with a far too large rate
-// can first jump to huge finite costs, where optim's relative gradient test
-// (‖∇J‖ ≤ tol·|J|) may even report convergence. The guard calls a run
-// diverged when an iteration's cost is not finite or exceeds
-// divergenceFactor·max(1, J(x0)), the cost at the starting params: a cost
-// a thousand times the start is far beyond the noise of mini-batch epochs.
-type divergenceGuard struct {
-	start    []float64 // x0, given to train.Config.Start
-	limit    float64   // costs above it count as divergence
-	diverged bool
-	cost     float64 // the cost that tripped the guard
-	iter     int     // and its iteration
-}
-
-const divergenceFactor = 1000
-
-// newDivergenceGuard evaluates the cost at the starting params (start, or
-// the spec's initialisation) on the training rows, scaled as train.Train
-// scales them.
-func newDivergenceGuard(s *spec.Network, set *data.Set, start []float64, noScale bool) (*divergenceGuard, error) {
-	net, err := nn.Compile(s)
-	if err != nil {
-		return nil, err
-	}
-	if start == nil {
-		start = net.NewParams()
-	}
-	x, _, _, _ := train.Prepare(set, nil, noScale)
-	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{})
-	if err != nil {
-		return nil, err
-	}
-	c0 := obj.Eval(nil, start)
-	return &divergenceGuard{start: start, limit: divergenceFactor * math.Max(1, c0)}, nil
-}
-
-func (g *divergenceGuard) check(p train.Progress) bool {
-	if math.IsNaN(p.Cost) || math.IsInf(p.Cost, 0) || p.Cost > g.limit {
-		g.diverged, g.cost, g.iter = true, p.Cost, p.Iter
-		return true
-	}
-	return false
 }
 
 // resumeParams reads the params of the model file at path and checks that

@@ -35,7 +35,7 @@ func TestTrainErrors(t *testing.T) {
 		{"NaN", triageSpec, "testdata/nan.csv", nil, []string{"nan.csv: line 4 (row 3)", `"error_share"`}},
 		{"empty CSV", triageSpec, "testdata/empty.csv", nil, []string{"empty.csv", "the file is empty"}},
 		{"no such label column", triageSpec, triageData, []string{"-label", "class"}, []string{"sessions.csv: line 1", `"class"`, "no label column"}},
-		{"diverges", triageSpec, triageData, []string{"-optimizer", "gd", "-rate", "1e6", "-iterations", "50"}, []string{"diverged at iteration 1", "smaller -rate", "was not written"}},
+		{"diverges", triageSpec, triageData, []string{"-optimizer", "gd", "-rate", "1e6", "-iterations", "50"}, []string{"diverged (cost", "at iteration 1 is more than 1000 times the starting cost", "smaller -rate", "was not written"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
