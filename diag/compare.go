@@ -207,17 +207,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if seed0 == 0 {
 		seed0 = s.Init.Seed
 	}
-	lim := cfg.Limits
-	if lim.Iterations == 0 {
-		lim.Iterations = s.Train.Iterations
-	}
-	if lim.GradTol == 0 {
-		lim.GradTol = s.Train.Tolerance
-	}
-	batch := cfg.Batch
-	if batch == 0 {
-		batch = s.Train.Batch
-	}
+	lim, batch := train.Defaults(s, cfg.Limits, cfg.Batch)
 	if batch == 0 {
 		batch = DefaultBatch
 	}
@@ -348,22 +338,10 @@ func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Me
 	return m, false, nil
 }
 
-// checkSet reports a data set that does not fit the net.
+// checkSet reports how set does not fit the net (see train.CheckSet).
 func checkSet(net *nn.Net, s *spec.Network, set *data.Set) error {
-	if set.Rows() == 0 {
-		return fmt.Errorf("%w: the data set has no rows", ErrConfig)
-	}
-	if _, c := set.X.Dims(); c != net.Inputs() {
-		return fmt.Errorf("%w: the data set has %d feature columns, the spec %d inputs", ErrConfig, c, net.Inputs())
-	}
-	if set.Y == nil {
-		return fmt.Errorf("%w: the data set has no labels", ErrConfig)
-	}
-	if _, c := set.Y.Dims(); c != len(s.Output.Classes) {
-		return fmt.Errorf("%w: the data set has %d classes, the spec %d", ErrConfig, c, len(s.Output.Classes))
-	}
-	if set.Multilabel != s.Output.Multilabel {
-		return fmt.Errorf("%w: the data set is multi-label=%v, the spec multilabel=%v", ErrConfig, set.Multilabel, s.Output.Multilabel)
+	if err := train.CheckSet(s, set, "data"); err != nil {
+		return fmt.Errorf("%w: %w", ErrConfig, err)
 	}
 	return nil
 }

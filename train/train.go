@@ -137,12 +137,12 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if err != nil {
 		return nil, err
 	}
-	if err := checkSet(net, s, set, "training"); err != nil {
-		return nil, err
+	if err := CheckSet(s, set, "training"); err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
 	}
 	if cfg.Holdout != nil {
-		if err := checkSet(net, s, cfg.Holdout, "holdout"); err != nil {
-			return nil, err
+		if err := CheckSet(s, cfg.Holdout, "holdout"); err != nil {
+			return nil, fmt.Errorf("%w: %w", ErrConfig, err)
 		}
 	} else if cfg.KeepBest || cfg.Patience > 0 {
 		return nil, fmt.Errorf("%w: keeping the best params or patience needs a holdout", ErrConfig)
@@ -160,17 +160,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 			return nil, err
 		}
 	}
-	lim := cfg.Limits
-	if lim.Iterations == 0 {
-		lim.Iterations = s.Train.Iterations
-	}
-	if lim.GradTol == 0 {
-		lim.GradTol = s.Train.Tolerance
-	}
-	batch := cfg.Batch
-	if batch == 0 {
-		batch = s.Train.Batch
-	}
+	lim, batch := Defaults(s, cfg.Limits, cfg.Batch)
 
 	x, hx, sc, warn := Prepare(set, cfg.Holdout, cfg.NoScale)
 	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers})
@@ -289,22 +279,41 @@ func methodName(m optim.Method) string {
 	return fmt.Sprintf("%T", m)
 }
 
-// checkSet reports a data set that does not fit the net.
-func checkSet(net *nn.Net, s *spec.Network, set *data.Set, what string) error {
-	if set.Rows() == 0 {
-		return fmt.Errorf("%w: the %s set has no rows", ErrConfig, what)
+// Defaults returns lim and batch with the spec's `train:` values filled in
+// where they are zero: Iterations from train.iterations, GradTol from
+// train.tolerance, and the mini-batch size from train.batch. What is still
+// zero keeps optim's defaults (batch 0 = all rows).
+func Defaults(s *spec.Network, lim optim.Limits, batch int) (optim.Limits, int) {
+	if lim.Iterations == 0 {
+		lim.Iterations = s.Train.Iterations
 	}
-	if _, c := set.X.Dims(); c != net.Inputs() {
-		return fmt.Errorf("%w: the %s set has %d feature columns, the spec %d inputs", ErrConfig, what, c, net.Inputs())
+	if lim.GradTol == 0 {
+		lim.GradTol = s.Train.Tolerance
+	}
+	if batch == 0 {
+		batch = s.Train.Batch
+	}
+	return lim, batch
+}
+
+// CheckSet reports how set does not fit the net that s describes: no rows,
+// another number of feature columns or classes, no labels, or another
+// multi-label setting. what names the set in the message ("training").
+func CheckSet(s *spec.Network, set *data.Set, what string) error {
+	if set.Rows() == 0 {
+		return fmt.Errorf("the %s set has no rows", what)
+	}
+	if _, c := set.X.Dims(); c != s.Inputs {
+		return fmt.Errorf("the %s set has %d feature columns, the spec %d inputs", what, c, s.Inputs)
 	}
 	if set.Y == nil {
-		return fmt.Errorf("%w: the %s set has no labels", ErrConfig, what)
+		return fmt.Errorf("the %s set has no labels", what)
 	}
 	if _, c := set.Y.Dims(); c != len(s.Output.Classes) {
-		return fmt.Errorf("%w: the %s set has %d classes, the spec %d", ErrConfig, what, c, len(s.Output.Classes))
+		return fmt.Errorf("the %s set has %d classes, the spec %d", what, c, len(s.Output.Classes))
 	}
 	if set.Multilabel != s.Output.Multilabel {
-		return fmt.Errorf("%w: the %s set is multi-label=%v, the spec multilabel=%v", ErrConfig, what, set.Multilabel, s.Output.Multilabel)
+		return fmt.Errorf("the %s set is multi-label=%v, the spec multilabel=%v", what, set.Multilabel, s.Output.Multilabel)
 	}
 	return nil
 }
