@@ -196,7 +196,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if err != nil {
 		return nil, err
 	}
-	if err := checkSet(net, s, set); err != nil {
+	if err := checkSet(s, set); err != nil {
 		return nil, err
 	}
 	names, err := contenderNames(cfg)
@@ -339,7 +339,7 @@ func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Me
 }
 
 // checkSet reports how set does not fit the net (see train.CheckSet).
-func checkSet(net *nn.Net, s *spec.Network, set *data.Set) error {
+func checkSet(s *spec.Network, set *data.Set) error {
 	if err := train.CheckSet(s, set, "data"); err != nil {
 		return fmt.Errorf("%w: %w", ErrConfig, err)
 	}

@@ -133,7 +133,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	if err != nil {
 		return nil, err
 	}
-	if err := checkSet(net, s, set); err != nil {
+	if err := checkSet(s, set); err != nil {
 		return nil, err
 	}
 	seed := cfg.Seed

@@ -161,7 +161,7 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 		if err != nil {
 			return nil, err
 		}
-		if err := checkSet(net, sp, set); err != nil {
+		if err := checkSet(sp, set); err != nil {
 			return nil, err
 		}
 	}
