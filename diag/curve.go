@@ -129,8 +129,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	if hold == 0 {
 		hold = DefaultHoldout
 	}
-	net, err := nn.Compile(s)
-	if err != nil {
+	if _, err := nn.Compile(s); err != nil {
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {

@@ -157,8 +157,7 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrConfig, cfg.Holdout)
 	}
 	for _, sp := range specs {
-		net, err := nn.Compile(sp)
-		if err != nil {
+		if _, err := nn.Compile(sp); err != nil {
 			return nil, err
 		}
 		if err := checkSet(sp, set); err != nil {
