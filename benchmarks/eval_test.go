@@ -14,19 +14,24 @@ import (
 var outputs = []spec.Activation{spec.Sigmoid, spec.Softmax}
 
 // reportEval reports the evaluation's GFLOP/s (F of the package
-// documentation over the time per evaluation) and rows/s.
-func reportEval(b *testing.B, n *nn.Net, rows int) time.Duration {
-	per := b.Elapsed() / time.Duration(b.N)
-	b.ReportMetric(gemmFLOPs(n.Sizes(), rows)/per.Seconds()/1e9, "GFLOP/s")
-	b.ReportMetric(float64(rows)/per.Seconds(), "rows/s")
-	return per
+// documentation over the wall time per evaluation), rows/s, and the CPU
+// time per evaluation cpu-ms/op since cpu0 (all threads of the process).
+func reportEval(b *testing.B, n *nn.Net, rows int, cpu0 time.Duration) (wall, cpu time.Duration) {
+	wall = b.Elapsed() / time.Duration(b.N)
+	cpu = (cpuTime() - cpu0) / time.Duration(b.N)
+	b.ReportMetric(gemmFLOPs(n.Sizes(), rows)/wall.Seconds()/1e9, "GFLOP/s")
+	b.ReportMetric(float64(rows)/wall.Seconds(), "rows/s")
+	b.ReportMetric(cpu.Seconds()*1e3, "cpu-ms/op")
+	return wall, cpu
 }
 
 // BenchmarkEval times cost and gradient over all rows with the default
 // options (chunk nn.DefaultChunk, GOMAXPROCS workers), then the GEMM
-// ceiling on the same shapes (once per size; see ceilingTime), and reports ratio = ceiling time / evaluation
-// time (the share of the ceiling's rate the evaluation reaches). Run it
-// with -cpu 1,2 for the two-core speed-up.
+// ceiling on the same shapes (once per size; see ceilingTime), and reports
+// ratio = ceiling wall time / evaluation wall time, the share of the
+// ceiling's rate the evaluation reaches, and cpu-ratio, the same with CPU
+// times (steadier on a loaded machine). Run it with -cpu 1,2 for the
+// two-core speed-up.
 func BenchmarkEval(b *testing.B) {
 	b.Logf("BLAS: %T, GOMAXPROCS %d", blasImpl(), runtime.GOMAXPROCS(0))
 	for _, sz := range sizes {
@@ -37,14 +42,18 @@ func BenchmarkEval(b *testing.B) {
 				sinkFloat = o.Eval(g, p) // warm-up: workspaces and workers
 				b.ReportAllocs()
 				b.ResetTimer()
+				cpu0 := cpuTime()
 				for range b.N {
 					sinkFloat = o.Eval(g, p)
 				}
 				b.StopTimer()
-				per := reportEval(b, n, sz.rows)
-				ct := ceilingTime(n.Sizes(), sz.rows, min(b.N, 5))
-				b.ReportMetric(gemmFLOPs(n.Sizes(), sz.rows)/ct.Seconds()/1e9, "gemm-GFLOP/s")
-				b.ReportMetric(ct.Seconds()/per.Seconds(), "ratio")
+				wall, cpu := reportEval(b, n, sz.rows, cpu0)
+				c := ceilingTime(n.Sizes(), sz.rows, min(b.N, 5))
+				b.ReportMetric(gemmFLOPs(n.Sizes(), sz.rows)/c.wall.Seconds()/1e9, "gemm-GFLOP/s")
+				b.ReportMetric(c.wall.Seconds()/wall.Seconds(), "ratio")
+				if cpu > 0 {
+					b.ReportMetric(c.cpu.Seconds()/cpu.Seconds(), "cpu-ratio")
+				}
 			})
 		}
 	}
@@ -97,11 +106,12 @@ func BenchmarkEvalGrid(b *testing.B) {
 					sinkFloat = o.Eval(g, p)
 					b.ReportAllocs()
 					b.ResetTimer()
+					cpu0 := cpuTime()
 					for range b.N {
 						sinkFloat = o.Eval(g, p)
 					}
 					b.StopTimer()
-					reportEval(b, n, sz.rows)
+					reportEval(b, n, sz.rows, cpu0)
 				})
 			}
 		}
@@ -119,11 +129,12 @@ func BenchmarkEvalRows(b *testing.B) {
 			sinkFloat = o.Eval(g, p)
 			b.ReportAllocs()
 			b.ResetTimer()
+			cpu0 := cpuTime()
 			for range b.N {
 				sinkFloat = o.Eval(g, p)
 			}
 			b.StopTimer()
-			reportEval(b, n, m)
+			reportEval(b, n, m, cpu0)
 		})
 	}
 }

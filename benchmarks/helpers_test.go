@@ -245,21 +245,25 @@ func (c *ceiling) runSplit() {
 	}
 }
 
-// time returns the time of one evaluation's worth of products: the best
-// of reps runs of runWhole and of runSplit.
-func (c *ceiling) time(reps int) time.Duration {
-	best := time.Duration(1<<63 - 1)
+// cost is the wall and CPU time of one evaluation's worth of products.
+type cost struct{ wall, cpu time.Duration }
+
+// time returns the best of reps runs of runWhole and of runSplit, the wall
+// and the CPU time each taken as its own minimum.
+func (c *ceiling) time(reps int) cost {
+	best := cost{1<<63 - 1, 1<<63 - 1}
 	for _, f := range []func(){c.runWhole, c.runSplit} {
 		for range max(reps, 1) {
-			t0 := time.Now()
+			c0, t0 := cpuTime(), time.Now()
 			f()
-			best = min(best, time.Since(t0))
+			best.wall = min(best.wall, time.Since(t0))
+			best.cpu = min(best.cpu, cpuTime()-c0)
 		}
 	}
 	return best
 }
 
-var ceilings sync.Map // key: ceilingKey; value: time.Duration
+var ceilings sync.Map // key: ceilingKey; value: cost
 
 type ceilingKey struct {
 	w0, w1, w2, m, procs int
@@ -268,11 +272,11 @@ type ceilingKey struct {
 // ceilingTime returns c.time(reps) for a net with one hidden layer,
 // widths w, on m rows, measured once per process and GOMAXPROCS (both
 // outputs of a size share it: the products have the same shapes).
-func ceilingTime(w []int, m, reps int) time.Duration {
+func ceilingTime(w []int, m, reps int) cost {
 	procs := runtime.GOMAXPROCS(0)
 	k := ceilingKey{w[0], w[1], w[2], m, procs}
 	if t, ok := ceilings.Load(k); ok {
-		return t.(time.Duration)
+		return t.(cost)
 	}
 	t := newCeiling(w, m, procs).time(reps)
 	ceilings.Store(k, t)

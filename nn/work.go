@@ -14,8 +14,11 @@ func sub(g blas64.General, i, j, r, c int) blas64.General {
 	return blas64.General{Rows: r, Cols: c, Stride: g.Stride, Data: g.Data[i*g.Stride+j : (i+r-1)*g.Stride+j+c]}
 }
 
-// gemm computes C = alpha·op(A)·op(B) + beta·C tile by tile, with tiles
-// of at most tileRows × tileCols of C (see tile.go and blas_openblas.go).
+// gemm computes C = alpha·op(A)·op(B) + beta·C block by block: blocks of
+// at most tileRows × tileCols of C, each summed over the inner dimension in
+// consecutive slices of at most tileK (see tile.go and blas_openblas.go).
+// The blocks depend only on the shapes, so the order of every sum is fixed.
+// The inner dimension k is never 0 here (widths and chunk rows are ≥ 1).
 func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
 	if c.Rows == 0 || c.Cols == 0 {
 		return
@@ -26,21 +29,26 @@ func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float6
 	}
 	for i := 0; i < c.Rows; i += tileRows {
 		ri := min(tileRows, c.Rows-i)
-		var as blas64.General
-		if tA == blas.Trans {
-			as = sub(a, 0, i, k, ri)
-		} else {
-			as = sub(a, i, 0, ri, k)
-		}
 		for j := 0; j < c.Cols; j += tileCols {
 			cj := min(tileCols, c.Cols-j)
-			var bs blas64.General
-			if tB == blas.Trans {
-				bs = sub(b, j, 0, cj, k)
-			} else {
-				bs = sub(b, 0, j, k, cj)
+			cs := sub(c, i, j, ri, cj)
+			bt := beta
+			for l := 0; l < k; l += tileK {
+				kl := min(tileK, k-l)
+				var as, bs blas64.General
+				if tA == blas.Trans {
+					as = sub(a, l, i, kl, ri)
+				} else {
+					as = sub(a, i, l, ri, kl)
+				}
+				if tB == blas.Trans {
+					bs = sub(b, j, l, cj, kl)
+				} else {
+					bs = sub(b, l, j, kl, cj)
+				}
+				blas64.Gemm(tA, tB, alpha, as, bs, bt, cs)
+				bt = 1
 			}
-			blas64.Gemm(tA, tB, alpha, as, bs, beta, sub(c, i, j, ri, cj))
 		}
 	}
 }
