@@ -29,6 +29,7 @@ import (
 const (
 	tileRows = 1 << 30
 	tileCols = 1 << 30
+	tileK    = 1 << 30
 )
 
 // init selects the BLAS backend; it is the only effect of the build tag.
