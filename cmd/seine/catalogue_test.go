@@ -319,6 +319,17 @@ func TestCatalogueGenerated(t *testing.T) {
 		}
 		w.WriteString("\n1\n")
 	})
+	// 10⁶ columns: an 8 MB header, refused by the line limit before the
+	// column count is known; either way the header is never stored whole.
+	wider := gen("csv_1m_columns.csv", func(w *bufio.Writer) {
+		for j := range 1_000_000 {
+			if j > 0 {
+				w.WriteByte(',')
+			}
+			fmt.Fprintf(w, "f%06d", j)
+		}
+		w.WriteString("\n1\n")
+	})
 	// A 100 MB line: refused once it passes CSVOptions.MaxLineBytes (1 MiB),
 	// before the line is held in memory.
 	long := gen("csv_100mb_line.csv", func(w *bufio.Writer) {
@@ -341,6 +352,7 @@ func TestCatalogueGenerated(t *testing.T) {
 	cases := []catCase{
 		{"spec 10 MB", "train", bigSpec, nil, 1, []string{"{file}: ", "larger than the limit of 1048576 bytes"}},
 		{"csv 100k columns", "train", wide, nil, 1, []string{"{file}: line 1", "100000 columns", "10000"}},
+		{"csv 1M columns", "train", wider, nil, 1, []string{"{file}: line 1", "longer than 1048576 bytes"}},
 		{"csv 100 MB line", "train", long, nil, 1, []string{"{file}: line 2", "longer than 1048576 bytes"}},
 		{"model JSON bomb, evaluate", "evaluate", bomb, nil, 1, []string{"{file}: ", "nesting deeper than"}},
 		{"model JSON bomb, inspect", "inspect", bomb, nil, 1, []string{"{file}: ", "nesting deeper than"}},
