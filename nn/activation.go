@@ -29,13 +29,9 @@ func activate(g spec.Activation, a, z []float64) {
 	a = a[:len(z)]
 	switch g {
 	case spec.Sigmoid:
-		for i, v := range z {
-			a[i] = sigmoid(v)
-		}
+		sigmoidTo(a, z)
 	case spec.Tanh:
-		for i, v := range z {
-			a[i] = math.Tanh(v)
-		}
+		tanhTo(a, z)
 	case spec.ReLU:
 		for i, v := range z {
 			a[i] = math.Max(v, 0)
