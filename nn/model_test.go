@@ -2,6 +2,7 @@ package nn
 
 import (
 	"bytes"
+	"encoding/base64"
 	"encoding/json"
 	"errors"
 	"math"
@@ -181,7 +182,11 @@ func TestReadModelRejects(t *testing.T) {
 	require.NoError(t, err)
 	edit := func(f func(doc map[string]any)) string {
 		doc := encoded(t, m)
+		sum := doc["sha256"]
 		f(doc)
+		if doc["sha256"] == sum {
+			seal(t, doc) // consistent but wrong: not a checksum case
+		}
 		b, err := json.Marshal(doc)
 		require.NoError(t, err)
 		return string(b)
@@ -201,7 +206,7 @@ func TestReadModelRejects(t *testing.T) {
 		{"truncated", good.String()[:good.Len()/2], ErrFormat, ""},
 		{"wrong format", edit(func(d map[string]any) { d["format"] = "other" }), ErrFormat, `"other"`},
 		{"future version", edit(func(d map[string]any) { d["version"] = 2 }), ErrVersion, "version 2"},
-		{"checksum", edit(func(d map[string]any) { params(d)["sha256"] = strings.Repeat("0", 64) }), ErrChecksum, ""},
+		{"checksum", edit(func(d map[string]any) { d["sha256"] = strings.Repeat("0", 64) }), ErrChecksum, ""},
 		{"flipped byte", string(flipped), ErrChecksum, ""},
 		{"count lies", edit(func(d map[string]any) { params(d)["count"] = 7 }), ErrModel, "count 7"},
 		{"unknown key", edit(func(d map[string]any) { d["extra"] = 1 }), ErrFormat, "extra"},
@@ -256,4 +261,45 @@ func TestSaveAndLoad(t *testing.T) {
 	assert.Equal(t, m.Params, fm.Params)
 	_, err = LoadFS(fsys, "nope.json")
 	assert.Error(t, err)
+}
+
+// seal recomputes the content digest of an edited model document, so that
+// a test can build a file that is consistent but wrong in some other way
+// (as a buggy writer would make it). Edits that leave the digest stale are
+// the checksum tests.
+func seal(t testing.TB, doc map[string]any) {
+	t.Helper()
+	strs := func(v any) []string {
+		if s, ok := v.([]string); ok {
+			return s
+		}
+		l, ok := v.([]any)
+		if !ok {
+			return nil
+		}
+		out := make([]string, len(l))
+		for i, s := range l {
+			out[i], _ = s.(string)
+		}
+		return out
+	}
+	nums := func(v any) []float64 {
+		if f, ok := v.([]float64); ok {
+			return f
+		}
+		l, _ := v.([]any)
+		out := make([]float64, len(l))
+		for i, x := range l {
+			out[i], _ = x.(float64)
+		}
+		return out
+	}
+	raw, err := base64.StdEncoding.DecodeString(doc["params"].(map[string]any)["data"].(string))
+	require.NoError(t, err)
+	var sc *fileScaler
+	if v, ok := doc["scaler"].(map[string]any); ok {
+		sc = &fileScaler{Mean: nums(v["mean"]), Scale: nums(v["scale"])}
+	}
+	spec, _ := doc["spec"].(string)
+	doc["sha256"] = digest(spec, strs(doc["classes"]), strs(doc["features"]), sc, raw)
 }

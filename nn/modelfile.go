@@ -30,9 +30,17 @@ import (
 //	  "scaler":   {"mean": […], "scale": […]} or null,
 //	  "summary":  {…},
 //	  "params":   {"count": P, "encoding": "float64-le-base64",
-//	               "sha256": "<hex of the SHA-256 of the raw bytes>",
-//	               "data": "<base64 of P little-endian IEEE 754 doubles>"}
+//	               "data": "<base64 of P little-endian IEEE 754 doubles>"},
+//	  "sha256":   "<hex of the content digest>"
 //	}
+//
+// The content digest is the SHA-256 of everything that changes what the
+// model predicts, in a fixed binary form: the spec text, the class names,
+// the feature names, the scaler and the raw params bytes, each preceded by
+// its length as a little-endian uint64 (a nil list or scaler as 2⁶⁴−1). The
+// summary is informational and left out. So a changed digit anywhere that
+// matters (a scaler mean, a class name, a layer width) fails the check
+// instead of silently shifting every prediction.
 //
 // The params are stored as raw bits so that they round-trip bit for bit;
 // the scaler's numbers are written in the shortest form that reads back to
@@ -65,6 +73,7 @@ type fileModel struct {
 	Scaler   *fileScaler `json:"scaler"`
 	Summary  fileSummary `json:"summary"`
 	Params   fileParams  `json:"params"`
+	SHA256   string      `json:"sha256"`
 }
 
 type fileScaler struct {
@@ -75,8 +84,52 @@ type fileScaler struct {
 type fileParams struct {
 	Count    int    `json:"count"`
 	Encoding string `json:"encoding"`
-	SHA256   string `json:"sha256"`
 	Data     string `json:"data"`
+}
+
+// digest returns the hex content digest of a model file's parts (see the
+// format description above).
+func digest(specText string, classes, features []string, sc *fileScaler, raw []byte) string {
+	h := sha256.New()
+	var n [8]byte
+	length := func(k int, isNil bool) {
+		v := uint64(k)
+		if isNil {
+			v = math.MaxUint64
+		}
+		binary.LittleEndian.PutUint64(n[:], v)
+		h.Write(n[:])
+	}
+	text := func(t string) {
+		length(len(t), false)
+		h.Write([]byte(t))
+	}
+	list := func(l []string) {
+		length(len(l), l == nil)
+		for _, t := range l {
+			text(t)
+		}
+	}
+	floats := func(v []float64) {
+		length(len(v), v == nil)
+		for _, x := range v {
+			binary.LittleEndian.PutUint64(n[:], math.Float64bits(x))
+			h.Write(n[:])
+		}
+	}
+	text(specText)
+	list(classes)
+	list(features)
+	if sc == nil {
+		length(0, true)
+	} else {
+		length(2, false)
+		floats(sc.Mean)
+		floats(sc.Scale)
+	}
+	length(len(raw), false)
+	h.Write(raw)
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 // fileSummary is Summary with NaN written as null.
@@ -125,15 +178,15 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	for i, v := range m.Params {
 		binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(v))
 	}
-	sum := sha256.Sum256(raw)
 	f := fileModel{
 		Format: FormatName, Version: FormatVersion, Spec: y.String(),
 		Classes: m.Classes, Features: m.Features,
-		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, SHA256: hex.EncodeToString(sum[:]), Data: base64.StdEncoding.EncodeToString(raw)},
+		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: base64.StdEncoding.EncodeToString(raw)},
 	}
 	if m.Mean != nil {
 		f.Scaler = &fileScaler{Mean: m.Mean, Scale: m.Scale}
 	}
+	f.SHA256 = digest(f.Spec, f.Classes, f.Features, f.Scaler, raw)
 	s := m.Summary
 	f.Summary = fileSummary{
 		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status,
@@ -192,27 +245,26 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if f.Version < 1 || f.Version > FormatVersion {
 		return nil, fmt.Errorf("%w: file has version %d, this library reads 1 to %d", ErrVersion, f.Version, FormatVersion)
 	}
-	s, err := spec.Parse(strings.NewReader(f.Spec))
-	if err != nil {
-		return nil, fmt.Errorf("%w: its spec: %w", ErrModel, err)
-	}
 	p := f.Params
 	if p.Encoding != paramEncoding {
 		return nil, fmt.Errorf("%w: params encoding %q, want %q", ErrFormat, p.Encoding, paramEncoding)
-	}
-	if want := s.ParamCount(); p.Count != want {
-		return nil, fmt.Errorf("%w: params count %d, the spec needs %d", ErrModel, p.Count, want)
 	}
 	raw, err := base64.StdEncoding.DecodeString(p.Data)
 	if err != nil {
 		return nil, fmt.Errorf("%w: params data: %w", ErrFormat, err)
 	}
+	if digest(f.Spec, f.Classes, f.Features, f.Scaler, raw) != strings.ToLower(f.SHA256) {
+		return nil, fmt.Errorf("%w: the contents do not match the file's sha256 (changed after it was written?)", ErrChecksum)
+	}
+	s, err := spec.Parse(strings.NewReader(f.Spec))
+	if err != nil {
+		return nil, fmt.Errorf("%w: its spec: %w", ErrModel, err)
+	}
+	if want := s.ParamCount(); p.Count != want {
+		return nil, fmt.Errorf("%w: params count %d, the spec needs %d", ErrModel, p.Count, want)
+	}
 	if len(raw) != 8*p.Count {
 		return nil, fmt.Errorf("%w: params data holds %d bytes, count %d needs %d", ErrModel, len(raw), p.Count, 8*p.Count)
-	}
-	sum := sha256.Sum256(raw)
-	if hex.EncodeToString(sum[:]) != strings.ToLower(p.SHA256) {
-		return nil, fmt.Errorf("%w: the params data does not match its sha256", ErrChecksum)
 	}
 	params := make([]float64, p.Count)
 	for i := range params {
