@@ -9,12 +9,10 @@ import (
 	"time"
 
 	"gonum.org/v1/gonum/floats"
-	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
-	"github.com/seine-ml/seine/score"
 	"github.com/seine-ml/seine/spec"
 	"github.com/seine-ml/seine/train"
 )
@@ -351,7 +349,7 @@ type problem struct {
 	net     *nn.Net
 	full    *nn.Objective // all training rows, one batch
 	batched *nn.Objective // the same rows in mini-batches
-	hold    *scorer       // nil without a holdout
+	hold    *train.Scorer // nil without a holdout
 	grad    []float64
 	warn    []string
 }
@@ -368,7 +366,7 @@ func newProblem(net *nn.Net, trainSet, holdSet *data.Set, noScale bool, batch, w
 	}
 	p := &problem{net: net, full: full, batched: batched, grad: make([]float64, net.NumParams()), warn: warn}
 	if holdSet != nil {
-		if p.hold, err = newScorer(net, hx, holdSet, workers); err != nil {
+		if p.hold, err = train.NewScorer(net, hx, holdSet, workers); err != nil {
 			return nil, fmt.Errorf("diag: holdout rows: %w", err)
 		}
 	}
@@ -396,7 +394,7 @@ func (p *problem) run(ctx context.Context, m optim.Method, batched bool, x0 []fl
 			tp.GradNorm = floats.Norm(p.grad, 2)
 		}
 		if p.hold != nil {
-			tp.HoldoutCost, tp.HoldoutAccuracy = p.hold.measure(xk)
+			tp.HoldoutCost, tp.HoldoutAccuracy = p.hold.Measure(xk)
 		}
 		r.Trace = append(r.Trace, tp)
 		excluded += time.Since(t0)
@@ -419,7 +417,7 @@ func (p *problem) run(ctx context.Context, m optim.Method, batched bool, x0 []fl
 	r.Status = res.Status
 	r.HoldoutCost, r.HoldoutAccuracy = math.NaN(), math.NaN()
 	if p.hold != nil {
-		r.HoldoutCost, r.HoldoutAccuracy = p.hold.measure(res.X)
+		r.HoldoutCost, r.HoldoutAccuracy = p.hold.Measure(res.X)
 	}
 	return r, nil
 }
@@ -578,42 +576,4 @@ func Profiles(comps []*Comparison) (byEvals, bySeconds *Profile, err error) {
 		return nil, nil, err
 	}
 	return byEvals, bySeconds, nil
-}
-
-// scorer measures params on a fixed set of scaled rows: the mean
-// cross-entropy without penalty, and the accuracy.
-type scorer struct {
-	net *nn.Net
-	obj *nn.Objective
-	x   *mat.Dense
-	set *data.Set
-	ws  *nn.Workspace
-}
-
-func newScorer(net *nn.Net, x *mat.Dense, set *data.Set, workers int) (*scorer, error) {
-	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Workers: workers})
-	if err != nil {
-		return nil, err
-	}
-	return &scorer{net: net, obj: obj, x: x, set: set, ws: net.NewWorkspace(set.Rows())}, nil
-}
-
-// measure returns the mean cross-entropy (nats, no penalty) and the share
-// of rows classified right.
-func (s *scorer) measure(params []float64) (cost, acc float64) {
-	out := s.net.Forward(s.ws, params, s.x)
-	m, c := out.Dims()
-	if c == 1 {
-		// Binary sigmoid: the unit is the probability of class 1.
-		right := 0
-		for i := range m {
-			if (out.At(i, 0) >= 0.5) == (s.set.Y.At(i, 1) > 0.5) {
-				right++
-			}
-		}
-		acc = float64(right) / float64(m)
-	} else {
-		acc = score.Accuracy(out, s.set.Y, s.set.Multilabel)
-	}
-	return s.obj.Loss(params), acc
 }

@@ -301,11 +301,11 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 		if sc != nil {
 			sc.Transform(x, x)
 		}
-		scr, err := newScorer(net, x, part.set, fc.workers)
+		scr, err := train.NewScorer(net, x, part.set, fc.workers)
 		if err != nil {
 			return fitted{}, err
 		}
-		*part.cost, *part.acc = scr.measure(m.Params)
+		*part.cost, *part.acc = scr.Measure(m.Params)
 	}
 	return out, nil
 }

@@ -167,10 +167,10 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if err != nil {
 		return nil, fmt.Errorf("train: training rows: %w", err)
 	}
-	var hold *holdout
+	var hold *Scorer
 	if cfg.Holdout != nil {
-		if hold, err = newHoldout(net, hx, cfg.Holdout, cfg.Workers); err != nil {
-			return nil, err
+		if hold, err = NewScorer(net, hx, cfg.Holdout, cfg.Workers); err != nil {
+			return nil, fmt.Errorf("train: holdout rows: %w", err)
 		}
 	}
 
@@ -191,7 +191,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 		p := Progress{Step: st, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
 		stop := false
 		if hold != nil {
-			p.HoldoutCost, p.HoldoutAccuracy = hold.measure(xk)
+			p.HoldoutCost, p.HoldoutAccuracy = hold.Measure(xk)
 			if p.HoldoutCost < bestCost {
 				bestCost, sinceBest, res.BestIter = p.HoldoutCost, 0, st.Iter
 				if cfg.KeepBest {
@@ -249,11 +249,15 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 		Seed:        seed,
 		Library:     nn.Version,
 	}
-	model.Summary.TrainAccuracy = accuracy(net, params, x, set)
+	ts, err := NewScorer(net, x, set, cfg.Workers)
+	if err != nil {
+		return nil, fmt.Errorf("train: training rows: %w", err)
+	}
+	model.Summary.TrainAccuracy = ts.accuracy(params)
 	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
 	if hold != nil {
 		model.Summary.HoldoutRows = cfg.Holdout.Rows()
-		model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = hold.measure(params)
+		model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = hold.Measure(params)
 	}
 	res.Model = model
 	if runErr != nil {
@@ -318,46 +322,47 @@ func CheckSet(s *spec.Network, set *data.Set, what string) error {
 	return nil
 }
 
-// holdout scores params on the holdout rows.
-type holdout struct {
-	net   *nn.Net
-	obj   *nn.Objective
-	x     *mat.Dense
-	set   *data.Set
-	ws    *nn.Workspace
-	probs *mat.Dense
+// Scorer measures params on a fixed set of scaled rows: the mean
+// cross-entropy without the penalty (nats) and the accuracy. Used for
+// holdout rows during training and by the diagnostics.
+type Scorer struct {
+	net *nn.Net
+	obj *nn.Objective
+	x   *mat.Dense
+	set *data.Set
+	ws  *nn.Workspace
 }
 
-func newHoldout(net *nn.Net, hx *mat.Dense, set *data.Set, workers int) (*holdout, error) {
-	obj, err := nn.NewObjective(net, hx, set.Y, nn.ObjectiveOptions{Workers: workers})
+// NewScorer returns a Scorer of the rows x (scaled as the net was trained)
+// with the targets of set. workers bounds the goroutines of one evaluation,
+// 0 meaning GOMAXPROCS.
+func NewScorer(net *nn.Net, x *mat.Dense, set *data.Set, workers int) (*Scorer, error) {
+	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Workers: workers})
 	if err != nil {
-		return nil, fmt.Errorf("train: holdout rows: %w", err)
+		return nil, err
 	}
-	return &holdout{net: net, obj: obj, x: hx, set: set, ws: net.NewWorkspace(set.Rows())}, nil
+	return &Scorer{net: net, obj: obj, x: x, set: set, ws: net.NewWorkspace(set.Rows())}, nil
 }
 
-// measure returns the mean cross-entropy and the accuracy of params on the
-// holdout rows.
-func (h *holdout) measure(params []float64) (cost, acc float64) {
-	return h.obj.Loss(params), accuracyWS(h.net, h.ws, params, h.x, h.set)
+// Measure returns the mean cross-entropy (no penalty) and the share of rows
+// classified right (exact-set match at 0.5 for multi-label rows) of params.
+func (s *Scorer) Measure(params []float64) (cost, acc float64) {
+	return s.obj.Loss(params), s.accuracy(params)
 }
 
-func accuracy(net *nn.Net, params []float64, x *mat.Dense, set *data.Set) float64 {
-	return accuracyWS(net, net.NewWorkspace(set.Rows()), params, x, set)
-}
-
-func accuracyWS(net *nn.Net, ws *nn.Workspace, params []float64, x *mat.Dense, set *data.Set) float64 {
-	out := net.Forward(ws, params, x)
+func (s *Scorer) accuracy(params []float64) float64 {
+	out := s.net.Forward(s.ws, params, s.x)
 	if _, c := out.Dims(); c == 1 {
-		// Binary sigmoid: the unit is the probability of class 1.
+		// Binary sigmoid: the unit is the probability p of class 1, and the
+		// model predicts class 1 when p > 1−p (class 0 on a tie, as argmax).
 		m, _ := out.Dims()
 		correct := 0
 		for i := 0; i < m; i++ {
-			if (out.At(i, 0) >= 0.5) == (set.Y.At(i, 1) > 0.5) {
+			if (out.At(i, 0) > 0.5) == (s.set.Y.At(i, 1) > 0.5) {
 				correct++
 			}
 		}
 		return float64(correct) / float64(m)
 	}
-	return score.Accuracy(out, set.Y, set.Multilabel)
+	return score.Accuracy(out, s.set.Y, s.set.Multilabel)
 }
