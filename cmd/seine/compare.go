@@ -82,8 +82,6 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	asJSON := fs.Bool("json", false, "write the table as a JSON array")
 	plot := fs.String("plot", "", "draw cost curves (one problem) or performance profiles (several) to `FILE`.png or .svg")
 	trace := fs.String("trace", "", "write every iteration of every run to `FILE`.csv")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+compareHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

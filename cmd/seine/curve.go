@@ -47,8 +47,6 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	specPenalty := fs.Bool("spec-penalty", false, "train every subset with the spec's λ as written")
 	asJSON := fs.Bool("json", false, "write the curve as one JSON object")
 	plot := fs.String("plot", "", "draw the curve to `FILE`.png or .svg")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+curveHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

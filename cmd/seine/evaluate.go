@@ -43,8 +43,6 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	asJSON := fs.Bool("json", false, "write the report as one JSON object")
 	plot := fs.String("plot", "", "also draw the confusion matrix to `FILE`.png or FILE.svg")
 	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class counts as present (default 0.5)")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+evaluateHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

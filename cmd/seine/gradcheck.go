@@ -60,8 +60,6 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	rows := fs.Int("rows", 20, "number of `rows` to check on")
 	seed := fs.Uint64("seed", 1, "seed of the random rows and classes when there is no -data")
 	asJSON := fs.Bool("json", false, "write the result as one JSON object")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+gradientCheckHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

@@ -31,8 +31,6 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	specPath := fs.String("spec", "", "spec `FILE` (YAML) to describe")
 	modelPath := fs.String("model", "", "model `FILE` to describe")
 	rows := fs.Int("rows", 0, "training `rows` for the memory estimate (default 10000, or the model's training rows)")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+inspectHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

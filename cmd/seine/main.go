@@ -31,6 +31,7 @@ type command struct {
 	name    string
 	args    string // synopsis of the flags
 	summary string // one line
+	help    string // paragraphs printed after the flags by -h; may be empty
 	// run does the work. It returns a *usageError for bad usage (exit 2) and
 	// any other error for a failure of the work (exit 1).
 	run func(ctx context.Context, e *env, args []string) error
@@ -57,14 +58,14 @@ func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(form
 // looks the table up: a variable would depend on itself.
 func commandList() []*command {
 	return []*command{
-		{name: "train", args: "-spec FILE -data FILE -out FILE [flags]", summary: "train a model on CSV data and save it", run: runTrain},
-		{name: "evaluate", args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
-		{name: "predict", args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
-		{name: "gradient-check", args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
-		{name: "inspect", args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
-		{name: "compare", args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
-		{name: "sweep", args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
-		{name: "curve", args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
+		{name: "train", help: trainHelp, args: "-spec FILE -data FILE -out FILE [flags]", summary: "train a model on CSV data and save it", run: runTrain},
+		{name: "evaluate", help: evaluateHelp, args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
+		{name: "predict", help: predictHelp, args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
+		{name: "gradient-check", help: gradientCheckHelp, args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
+		{name: "inspect", help: inspectHelp, args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
+		{name: "compare", help: compareHelp, args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
+		{name: "sweep", help: sweepHelp, args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
+		{name: "curve", help: curveHelp, args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
 	}
 }
 
@@ -161,6 +162,9 @@ func newFlags(c string, e *env) *flag.FlagSet {
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: seine %s %s\n\n%s.\n\nFlags:\n", c, cmd.args, upperFirst(cmd.summary))
 		fs.PrintDefaults()
+		if cmd.help != "" {
+			fmt.Fprint(fs.Output(), "\n"+cmd.help)
+		}
 	}
 	return fs
 }

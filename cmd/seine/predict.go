@@ -37,8 +37,6 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	probs := fs.Bool("probabilities", false, "add one probability column per class")
 	label := fs.String("label", "", "name of a label `COLUMN` to ignore")
 	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class is predicted (default 0.5)")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+predictHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

@@ -48,8 +48,6 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	noScale := fs.Bool("noscale", false, "train on the features as they are, without standardising them")
 	asJSON := fs.Bool("json", false, "write the sweeps as a JSON array")
 	plot := fs.String("plot", "", "draw cost against λ to `FILE`.png or .svg")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+sweepHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

@@ -81,8 +81,6 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	fs.StringVar(&f.checkpoint, "checkpoint", "", "also save the current params to this model `FILE` during the run")
 	fs.IntVar(&f.every, "every", 0, "checkpoint every `N` iterations (default a tenth of the iteration limit)")
 	fs.StringVar(&f.resume, "resume", "", "start from the params of this model or checkpoint `FILE`")
-	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(fs.Output(), "\n"+trainHelp) }
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
