@@ -10,7 +10,8 @@
 //     large 20,000×400→256→10), each with a sigmoid and a softmax output.
 //     After the timed loop it times the GEMM ceiling: the same five
 //     matrix products at full size, with the BLAS in use (see below), and
-//     reports gemm-GFLOP/s and ratio = eval rate / GEMM rate.
+//     reports gemm-GFLOP/s and ratio = eval rate / GEMM rate (cpu-ratio:
+//     the same with process CPU time, steadier on a shared machine).
 //   - BenchmarkGEMM: the ceiling on its own.
 //   - BenchmarkEvalGrid: every combination of workers (1, 2) and chunk
 //     (64 … 1,024 rows) at each size.
@@ -20,6 +21,8 @@
 //     BenchmarkReadModel: the triage model as a service uses it.
 //   - BenchmarkBookkeeping: one iteration of each optimizer at P = 10⁶
 //     minus the time spent in its objective.
+//   - TestTrainingBytes: nn.Net.TrainingBytes against the bytes allocated,
+//     and no allocation per evaluation after the first.
 //
 // FLOP counts. A product of an r×k by a k×c matrix counts 2·r·k·c. One
 // evaluation of a net with widths n_0 … n_L over m rows counts the GEMM
