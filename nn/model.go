@@ -31,8 +31,9 @@ type Model struct {
 	Features []string
 	Summary  Summary
 
-	net  *Net
-	pool sync.Pool // *rowScratch
+	net       *Net
+	pool      sync.Pool // *rowScratch
+	batchPool sync.Pool // *batchScratch
 }
 
 // Summary records how a model was trained. Figures that do not apply are
@@ -123,6 +124,9 @@ func (m *Model) init() error {
 		return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.Features), net.Inputs())
 	}
 	m.net = net
+	m.batchPool.New = func() any {
+		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), probs: make([]float64, len(m.Classes))}
+	}
 	m.pool.New = func() any {
 		return &rowScratch{ws: net.NewWorkspace(1), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
 	}
@@ -226,44 +230,17 @@ func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
 
 // ProbabilitiesBatch writes the class probabilities of each raw row of x
 // into the rows of dst, which must be r × NumClasses for r = rows of x, or
-// empty (then it is sized). The rows are processed in blocks of the net's
-// batch workspace.
+// empty (then it is sized). Rows go through the net in blocks of pooled
+// workspace, so a call allocates almost nothing after warm-up.
 func (m *Model) ProbabilitiesBatch(dst *mat.Dense, x mat.Matrix) {
-	r, c := x.Dims()
-	if c != m.net.Inputs() {
-		panic(fmt.Sprintf("nn: rows have %d features, the model takes %d", c, m.net.Inputs()))
-	}
+	r, _ := x.Dims()
 	k := len(m.Classes)
 	if dst.IsEmpty() {
 		dst.ReuseAs(r, k)
 	} else if dr, dc := dst.Dims(); dr != r || dc != k {
 		panic("nn: ProbabilitiesBatch: dst has the wrong shape")
 	}
-	const block = 512
-	ws := m.net.NewWorkspace(block)
-	in := mat.NewDense(block, c, nil)
-	for start := 0; start < r; start += block {
-		end := min(start+block, r)
-		n := end - start
-		sub := in.Slice(0, n, 0, c).(*mat.Dense)
-		for i := 0; i < n; i++ {
-			row := sub.RawRowView(i)
-			for j := range row {
-				row[j] = x.At(start+i, j)
-			}
-			m.scale(row, row)
-		}
-		out := m.net.Forward(ws, m.Params, sub)
-		for i := 0; i < n; i++ {
-			o := out.RawRowView(i)
-			d := dst.RawRowView(start + i)
-			if len(o) == 1 && k == 2 {
-				d[0], d[1] = 1-o[0], o[0]
-			} else {
-				copy(d, o)
-			}
-		}
-	}
+	m.eachRow(x, func(i int, p []float64) { copy(dst.RawRowView(i), p) })
 }
 
 // PredictBatch writes the most probable class of each raw row of x into dst
@@ -274,10 +251,58 @@ func (m *Model) PredictBatch(dst []int, x mat.Matrix) []int {
 		dst = make([]int, r)
 	}
 	dst = dst[:r]
-	var p mat.Dense
-	m.ProbabilitiesBatch(&p, x)
-	for i := range dst {
-		dst[i] = argmax(p.RawRowView(i))
-	}
+	m.eachRow(x, func(i int, p []float64) { dst[i] = argmax(p) })
 	return dst
+}
+
+// batchBlock is the number of rows a batch prediction sends through the net
+// at once.
+const batchBlock = 512
+
+// batchScratch is the pooled space of a batch prediction.
+type batchScratch struct {
+	ws    *Workspace
+	in    *mat.Dense // batchBlock × inputs: scaled rows
+	probs []float64  // class probabilities of one row
+}
+
+// eachRow runs the raw rows of x through the net in blocks and calls emit
+// with each row's index and class probabilities (valid during the call).
+func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
+	r, c := x.Dims()
+	if c != m.net.Inputs() {
+		panic(fmt.Sprintf("nn: rows have %d features, the model takes %d", c, m.net.Inputs()))
+	}
+	sc := m.batchPool.Get().(*batchScratch)
+	defer m.batchPool.Put(sc)
+	raw, isRaw := x.(mat.RawMatrixer)
+	for start := 0; start < r; start += batchBlock {
+		n := min(batchBlock, r-start)
+		for i := 0; i < n; i++ {
+			row := sc.in.RawRowView(i)
+			if isRaw {
+				b := raw.RawMatrix()
+				copy(row, b.Data[(start+i)*b.Stride:(start+i)*b.Stride+c])
+			} else {
+				for j := range row {
+					row[j] = x.At(start+i, j)
+				}
+			}
+			m.scale(row, row)
+		}
+		block := sc.in
+		if n < batchBlock {
+			block = sc.in.Slice(0, n, 0, c).(*mat.Dense)
+		}
+		out := m.net.Forward(sc.ws, m.Params, block)
+		for i := 0; i < n; i++ {
+			o := out.RawRowView(i)
+			if len(o) == 1 && len(sc.probs) == 2 {
+				sc.probs[0], sc.probs[1] = 1-o[0], o[0]
+			} else {
+				copy(sc.probs, o)
+			}
+			emit(start+i, sc.probs)
+		}
+	}
 }
