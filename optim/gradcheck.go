@@ -7,8 +7,8 @@ import (
 	"gonum.org/v1/gonum/diff/fd"
 )
 
-// GradCheck is the outcome of CheckGradient.
-type GradCheck struct {
+// GradientCheck is the outcome of CheckGradient.
+type GradientCheck struct {
 	// Analytic is the gradient the objective returns; Numeric the finite
 	// difference estimate.
 	Analytic, Numeric []float64
@@ -34,16 +34,16 @@ type GradCheck struct {
 // order 1e-7 or less with central differences (common practice: error
 // O(h²) ≈ 1e-10 plus rounding O(ε/h) ≈ 1e-10 at h ≈ 6e-6); a wrong
 // component typically gives 1e-2 or more.
-func CheckGradient(f Objective, x []float64, settings *fd.Settings) (GradCheck, error) {
+func CheckGradient(f Objective, x []float64, settings *fd.Settings) (GradientCheck, error) {
 	if f == nil {
-		return GradCheck{}, ErrNilObjective
+		return GradientCheck{}, ErrNilObjective
 	}
 	if len(x) == 0 {
-		return GradCheck{}, ErrEmptyStart
+		return GradientCheck{}, ErrEmptyStart
 	}
 	for i, v := range x {
 		if !finite(v) {
-			return GradCheck{}, fmt.Errorf("%w: x[%d] = %v", ErrNotFiniteStart, i, v)
+			return GradientCheck{}, fmt.Errorf("%w: x[%d] = %v", ErrNotFiniteStart, i, v)
 		}
 	}
 	var s fd.Settings
@@ -55,15 +55,15 @@ func CheckGradient(f Objective, x []float64, settings *fd.Settings) (GradCheck, 
 	}
 	g := make([]float64, len(x))
 	if c := f.Eval(g, x); !finite(c) {
-		return GradCheck{}, fmt.Errorf("%w: cost at x is %v", ErrNotFiniteStart, c)
+		return GradientCheck{}, fmt.Errorf("%w: cost at x is %v", ErrNotFiniteStart, c)
 	}
 	for i, v := range g {
 		if !finite(v) {
-			return GradCheck{}, fmt.Errorf("%w: gradient[%d] at x is %v", ErrNotFiniteStart, i, v)
+			return GradientCheck{}, fmt.Errorf("%w: gradient[%d] at x is %v", ErrNotFiniteStart, i, v)
 		}
 	}
 	num := fd.Gradient(nil, func(p []float64) float64 { return f.Eval(nil, p) }, x, &s)
-	gc := GradCheck{Analytic: g, Numeric: num}
+	gc := GradientCheck{Analytic: g, Numeric: num}
 	for i := range g {
 		e := math.Abs(g[i]-num[i]) / math.Max(1, math.Max(math.Abs(g[i]), math.Abs(num[i])))
 		if !(e <= gc.MaxRelErr) { // also catches NaN
