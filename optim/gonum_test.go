@@ -80,6 +80,7 @@ func TestMGHTable(t *testing.T) {
 	gdLim.Iterations = 100000
 	cols := []col{
 		{"CG (ours)", func() Method { return &ConjugateGradient{} }, mghLimits},
+		{"CG, HS (ours)", func() Method { return &ConjugateGradient{Formula: HestenesStiefel} }, mghLimits},
 		{"L-BFGS (ours)", func() Method { return &LBFGS{} }, mghLimits},
 		{"GD (ours)", func() Method { return &GradientDescent{} }, gdLim},
 		{"optimize.CG", func() Method { return &Gonum{Method: &optimize.CG{}} }, mghLimits},
