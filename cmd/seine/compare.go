@@ -78,7 +78,7 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	holdout := fs.Float64("holdout", 0, "fraction of rows in [0, 1) kept out and scored after every iteration")
 	batch := fs.Int("batch", 0, "mini-batch rows of momentum and adam (default the spec's train.batch, else 32)")
 	target := fs.Float64("target", diag.DefaultTarget, "target cost: within this fraction of the best cost of each seed")
-	noScale := fs.Bool("noscale", false, "train on the features as they are, without standardising them")
+	standardize := fs.Bool("standardize", true, "centre and scale each feature on the training rows (as seine train does)")
 	asJSON := fs.Bool("json", false, "write the table as a JSON array")
 	plot := fs.String("plot", "", "draw cost curves (one problem) or performance profiles (several) to `FILE`.png or .svg")
 	trace := fs.String("trace", "", "write every iteration of every run to `FILE`.csv")
@@ -151,7 +151,7 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 		Seed:       *seed,
 		Holdout:    *holdout,
 		Target:     *target,
-		NoScale:    *noScale,
+		NoScale:    !*standardize,
 	}
 	comps := make([]*diag.Comparison, len(pairs))
 	names := make([]string, len(pairs))

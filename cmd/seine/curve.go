@@ -43,7 +43,7 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	holdout := fs.Float64("holdout", diag.DefaultHoldout, "fraction of rows in (0, 1) kept out")
 	seed := fs.Uint64("seed", 0, "seed of the split, the subsets and the initial params (default the spec's init.seed)")
 	iterations := fs.Int("iterations", 0, "iteration limit of each fit (default the spec's train.iterations)")
-	noScale := fs.Bool("noscale", false, "train on the features as they are, without standardising them")
+	standardize := fs.Bool("standardize", true, "centre and scale each feature on the training rows (as seine train does)")
 	specPenalty := fs.Bool("spec-penalty", false, "train every subset with the spec's λ as written")
 	asJSON := fs.Bool("json", false, "write the curve as one JSON object")
 	plot := fs.String("plot", "", "draw the curve to `FILE`.png or .svg")
@@ -75,7 +75,7 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	c, err := diag.LearningCurve(ctx, s, set, diag.CurveConfig{
-		Steps: *steps, Holdout: *holdout, Seed: *seed, NoScale: *noScale, SpecPenalty: *specPenalty,
+		Steps: *steps, Holdout: *holdout, Seed: *seed, NoScale: !*standardize, SpecPenalty: *specPenalty,
 		Limits: optim.Limits{Iterations: *iterations},
 	})
 	if err != nil {

@@ -45,7 +45,7 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	holdout := fs.Float64("holdout", 0, "validate on one stratified split with this fraction of rows instead of folds")
 	seed := fs.Uint64("seed", 0, "seed of the folds and the initial params (default the spec's init.seed)")
 	iterations := fs.Int("iterations", 0, "iteration limit of each fit (default the spec's train.iterations)")
-	noScale := fs.Bool("noscale", false, "train on the features as they are, without standardising them")
+	standardize := fs.Bool("standardize", true, "centre and scale each feature on the training rows (as seine train does)")
 	asJSON := fs.Bool("json", false, "write the sweeps as a JSON array")
 	plot := fs.String("plot", "", "draw cost against λ to `FILE`.png or .svg")
 	if err := parseFlags(fs, args); err != nil {
@@ -99,7 +99,7 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	cfg := diag.SweepConfig{
-		Folds: *folds, Holdout: *holdout, Seed: *seed, NoScale: *noScale,
+		Folds: *folds, Holdout: *holdout, Seed: *seed, NoScale: !*standardize,
 		Limits: optim.Limits{Iterations: *iterations},
 	}
 	name := problemName(s, *dataPath)
