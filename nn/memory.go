@@ -13,7 +13,7 @@ import "runtime"
 //	data        m·n_0 + m·K            x (scaled) and y, which the objective reads in place
 //	            + m                    the targets of a binary sigmoid output (one unit)
 //	batches     m + b·n_0 + b·n_L      row permutation and the gathered batch rows
-//	workspaces  W·(P + 3·c·Σ_{l≥1} n_l) per worker: its gradient and Z, A, Δ of every layer
+//	workspaces  W·(2P + 3·c·Σ_{l≥1} n_l) per worker: two chunk gradients waiting to be summed, and Z, A, Δ of every layer
 //	gradient    P                      the sum of the chunk gradients
 //
 // plus at most 160 bytes per chunk for the chunk descriptors (two
@@ -65,6 +65,6 @@ func (n *Net) TrainingBytes(rows int, opt ObjectiveOptions) int64 {
 		units += int64(s)
 	}
 	c := min(chunk, m)
-	words += workers*(P+3*c*units) + P
+	words += workers*(2*P+3*c*units) + P
 	return 8*words + 160*chunks
 }

@@ -305,90 +305,167 @@ func (o *Objective) penalty(grad, params []float64) float64 {
 // runs on the caller's goroutine; works[i], i ≥ 1, on a goroutine started at
 // the first parallel run and stopped when the Objective is collected. The
 // engine holds no reference to its Objective.
+//
+// A worker takes a free result slot and the next chunk, evaluates the chunk
+// into the slot and, if every earlier chunk has been added, adds the chunk's
+// loss and gradient into the sums, then any parked chunks that follow it.
+// Otherwise it parks the slot and goes on with the next chunk. So the sums
+// are formed in chunk order, the same for any number of workers, and no
+// worker waits for another unless all slots are taken: there are two per
+// worker.
 type engine struct {
 	net     *Net
 	works   []*work
 	acc     []float64 // Σ over chunks, in chunk order, of the chunk gradients
-	jobs    []chan job
+	wake    []chan struct{}
 	wg      sync.WaitGroup
 	started bool
+
+	// The run in progress, set by run before it wakes the workers. The
+	// fields below mu are guarded by it; loss and acc are written only by
+	// the worker that adds chunk added.
+	cs       []chunk
+	params   []float64
+	backward bool
+	loss     float64 // Σ in chunk order of the chunk losses
+	mu       sync.Mutex
+	freed    sync.Cond // broadcast when a slot returns to free
+	next     int       // index of the next chunk to take
+	added    int       // chunks added into loss and acc so far
+	free     []*slot
+	parked   []*slot // a chunk c evaluated before its turn waits in parked[c % len(parked)]
 }
 
-type job struct {
-	params   []float64
-	c        chunk
-	backward bool
+// slot holds the result of one chunk between its evaluation and its turn
+// to be added.
+type slot struct {
+	chunk int
+	loss  float64
+	grad  []float64
 }
 
 func newEngine(n *Net, workers, rows int) *engine {
 	e := &engine{net: n, works: make([]*work, workers), acc: make([]float64, n.np)}
+	e.freed.L = &e.mu
 	for i := range e.works {
 		e.works[i] = newWork(n, rows, true)
+	}
+	e.parked = make([]*slot, 2*workers)
+	e.free = make([]*slot, 0, len(e.parked))
+	for range e.parked {
+		e.free = append(e.free, &slot{grad: make([]float64, n.np)})
 	}
 	return e
 }
 
-func serve(w *work, n *Net, jobs <-chan job, wg *sync.WaitGroup) {
-	for j := range jobs {
-		w.eval(n, j.params, j.c.x, j.c.t, j.backward)
-		wg.Done()
+func (e *engine) serve(w *work, wake <-chan struct{}) {
+	for range wake {
+		e.work(w)
+		e.wg.Done()
 	}
 }
 
 func (e *engine) start() {
-	e.jobs = make([]chan job, len(e.works))
+	e.wake = make([]chan struct{}, len(e.works))
 	for i := 1; i < len(e.works); i++ {
-		e.jobs[i] = make(chan job, 1)
-		go serve(e.works[i], e.net, e.jobs[i], &e.wg)
+		e.wake[i] = make(chan struct{}, 1)
+		go e.serve(e.works[i], e.wake[i])
 	}
 	e.started = true
 }
 
 func (e *engine) stop() {
 	if e.started {
-		for _, ch := range e.jobs[1:] {
+		for _, ch := range e.wake[1:] {
 			close(ch)
 		}
 	}
 }
 
-// run evaluates the chunks in waves of len(works): chunk c0+i of a wave on
-// works[i]. After each wave it adds the chunks' losses and gradients in chunk
-// order, so the sums are the same for any number of workers. It returns the
-// summed loss and leaves the summed gradient in e.acc when backward.
-func (e *engine) run(cs []chunk, params []float64, backward bool) float64 {
-	loss := 0.0
-	W := len(e.works)
-	for c0 := 0; c0 < len(cs); c0 += W {
-		nw := min(W, len(cs)-c0)
-		if nw > 1 {
-			if !e.started {
-				e.start()
-			}
-			e.wg.Add(nw - 1)
-			for i := 1; i < nw; i++ {
-				e.jobs[i] <- job{params: params, c: cs[c0+i], backward: backward}
-			}
+// work evaluates chunks on w until none is left. At most len(parked)
+// chunks hold a slot at a time, all in [added, next), so parked[c % n] is
+// free for each of them.
+func (e *engine) work(w *work) {
+	e.mu.Lock()
+	for {
+		for len(e.free) == 0 && e.next < len(e.cs) {
+			e.freed.Wait()
 		}
-		c := cs[c0]
-		e.works[0].eval(e.net, params, c.x, c.t, backward)
-		if nw > 1 {
-			e.wg.Wait()
+		if e.next == len(e.cs) {
+			e.mu.Unlock()
+			return
 		}
-		for i := 0; i < nw; i++ {
-			w := e.works[i]
-			loss += w.loss
-			if !backward {
-				continue
+		s := e.free[len(e.free)-1]
+		e.free = e.free[:len(e.free)-1]
+		s.chunk = e.next
+		e.next++
+		e.mu.Unlock()
+
+		ch := e.cs[s.chunk]
+		w.grad = s.grad
+		w.eval(e.net, e.params, ch.x, ch.t, e.backward)
+		s.loss = w.loss
+
+		e.mu.Lock()
+		for s != nil {
+			if s.chunk != e.added {
+				e.parked[s.chunk%len(e.parked)] = s
+				break
 			}
-			if c0+i == 0 {
-				copy(e.acc, w.grad)
-			} else {
-				for j, g := range w.grad {
-					e.acc[j] += g
-				}
+			// s is the next chunk in order: no other worker touches the
+			// sums until added moves past it.
+			e.mu.Unlock()
+			e.add(s)
+			e.mu.Lock()
+			e.added++
+			e.free = append(e.free, s)
+			e.freed.Broadcast()
+			i := e.added % len(e.parked)
+			s = e.parked[i]
+			e.parked[i] = nil
+			if s != nil && s.chunk != e.added {
+				panic("nn: engine slot out of order")
 			}
 		}
 	}
-	return loss
+}
+
+// add adds the loss and gradient of s into the sums.
+func (e *engine) add(s *slot) {
+	e.loss += s.loss
+	if !e.backward {
+		return
+	}
+	if s.chunk == 0 {
+		copy(e.acc, s.grad)
+		return
+	}
+	for j, g := range s.grad {
+		e.acc[j] += g
+	}
+}
+
+// run evaluates the chunks and adds their losses and, when backward, their
+// gradients in chunk order, so the sums are the same for any number of
+// workers. It returns the summed loss and leaves the summed gradient in
+// e.acc when backward.
+func (e *engine) run(cs []chunk, params []float64, backward bool) float64 {
+	e.cs, e.params, e.backward = cs, params, backward
+	e.next, e.added, e.loss = 0, 0, 0
+	nw := min(len(e.works), len(cs))
+	if nw > 1 {
+		if !e.started {
+			e.start()
+		}
+		e.wg.Add(nw - 1)
+		for i := 1; i < nw; i++ {
+			e.wake[i] <- struct{}{}
+		}
+	}
+	e.work(e.works[0])
+	if nw > 1 {
+		e.wg.Wait()
+	}
+	e.cs, e.params = nil, nil
+	return e.loss
 }

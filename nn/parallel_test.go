@@ -25,7 +25,7 @@ func TestWorkersBitIdentical(t *testing.T) {
 					p := awayFromZero(rng, n.NumParams())
 					var ref []float64
 					var refCost float64
-					for _, w := range []int{1, 2, 3} {
+					for _, w := range []int{1, 2, 3, 7} {
 						o, err := NewObjective(n, x, y, ObjectiveOptions{Batch: batch, Chunk: chunk, Workers: w})
 						if err != nil {
 							t.Fatal(err)

@@ -55,8 +55,9 @@ func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float6
 
 // work holds the buffers of one forward and backward pass over up to rows
 // rows: for layer l = 1…L, z[l−1] and a[l−1] hold Z_l and A_l and d[l−1]
-// holds Δ_l (all row-major, rows × n_l). grad holds the summed (not yet
-// averaged) gradient of the rows; loss their summed loss.
+// holds Δ_l (all row-major, rows × n_l). grad (NumParams values, set by
+// the owner before a backward eval) receives the summed (not yet averaged)
+// gradient of the rows; loss their summed loss.
 type work struct {
 	rows    int
 	z, a, d [][]float64
@@ -70,7 +71,6 @@ func newWork(n *Net, rows int, backward bool) *work {
 	w := &work{rows: rows, z: make([][]float64, L), a: make([][]float64, L)}
 	if backward {
 		w.d = make([][]float64, L)
-		w.grad = make([]float64, n.np)
 	}
 	for l := 0; l < L; l++ {
 		k := rows * n.sizes[l+1]
