@@ -3,6 +3,7 @@ package nn
 import (
 	"bytes"
 	"math"
+	"runtime"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -68,6 +69,7 @@ func TestHotSwap(t *testing.T) {
 		bad      atomic.Int64
 		seen     sync.Map // *Model → true, models that answered a query
 		stop     atomic.Bool
+		answered atomic.Int64 // queries answered so far
 		firstBad atomic.Value
 	)
 	for g := range readers {
@@ -75,7 +77,10 @@ func TestHotSwap(t *testing.T) {
 		go func() {
 			defer wg.Done()
 			dst := make([]float64, 3)
-			for n := 0; n < queries || !stop.Load(); n++ {
+			for n := 0; ; n++ {
+				// stop is read before the query, so a reader's last query
+				// comes after the last swap: the last model always answers.
+				stopped := stop.Load()
 				m := current.Load() // once per query
 				i := (g + n) % len(swapRows)
 				m.Probabilities(dst, swapRows[i])
@@ -88,6 +93,10 @@ func TestHotSwap(t *testing.T) {
 					}
 				}
 				seen.Store(m, true)
+				answered.Add(1)
+				if n >= queries && stopped {
+					return
+				}
 				if n > 100*queries {
 					return // the swapper is stuck; the checks below report it
 				}
@@ -104,6 +113,12 @@ func TestHotSwap(t *testing.T) {
 				swapErr.Store(r)
 			}
 		}()
+		// Swap only once the readers are querying, so that the first
+		// model answers too (on 2 cores the swapper could otherwise run
+		// through every swap before any reader starts).
+		for answered.Load() < readers {
+			runtime.Gosched()
+		}
 		for v := 1; v <= swaps; v++ {
 			current.Store(load(files[v]))
 		}
