@@ -577,11 +577,7 @@ func (p *parser) hidden(n *Network, v *yaml.Node) {
 			h.Units, _ = p.integer(u, path+".units")
 		}
 		if a, ok := p.require(f, c, path, "activation", "want one of "+hiddenNames); ok {
-			if name, ok := p.text(a, path+".activation", "an activation name"); ok {
-				act, known := ParseActivation(name)
-				if !known {
-					p.errorf(a, path+".activation", ErrUnknownName, "unknown activation %q (want one of %s)", truncate(name), hiddenNames)
-				}
+			if act, ok := parseName(p, a, path+".activation", "activation", ParseActivation, hiddenNames); ok {
 				h.Activation = act
 			}
 		}
@@ -631,17 +627,37 @@ func (p *parser) output(n *Network, v *yaml.Node) {
 		p.errorf(v, "output.classes", ErrMissingField, "missing classes or units (a list of class names, or a count)")
 	}
 	if a, ok := f["activation"]; ok {
-		if name, ok := p.text(a, "output.activation", "an activation name"); ok {
-			act, known := ParseActivation(name)
-			if !known {
-				p.errorf(a, "output.activation", ErrUnknownName, "unknown activation %q (want one of %s)", truncate(name), outputNames)
-			}
+		if act, ok := parseName(p, a, "output.activation", "activation", ParseActivation, outputNames); ok {
 			n.Output.Activation = act
 		}
 	}
 	if m, ok := f["multilabel"]; ok {
 		n.Output.Multilabel, _ = p.boolean(m, "output.multilabel")
 	}
+}
+
+// parseName reads the scalar x at field as a name that parse turns into a
+// typed constant (an activation, scheme or optimizer). An unknown name is
+// reported with the allowed ones and gives the zero value; ok is false only
+// when x is not text (also reported).
+func parseName[T any](p *parser, x *yaml.Node, field, kind string, parse func(string) (T, bool), allowed string) (v T, ok bool) {
+	name, ok := p.text(x, field, article(kind)+" "+kind+" name")
+	if !ok {
+		return v, false
+	}
+	v, known := parse(name)
+	if !known {
+		p.errorf(x, field, ErrUnknownName, "unknown %s %q (want one of %s)", kind, truncate(name), allowed)
+	}
+	return v, true
+}
+
+// article returns "an" before a vowel, else "a".
+func article(word string) string {
+	if strings.ContainsRune("aeiou", rune(word[0])) {
+		return "an"
+	}
+	return "a"
 }
 
 func before(a, b *yaml.Node) bool {
@@ -666,11 +682,9 @@ func (p *parser) init(n *Network, v *yaml.Node) {
 	p.mark("init", v)
 	f := p.fields(v, "init", "scheme", "scale", "seed")
 	if x, ok := f["scheme"]; ok {
-		if name, ok := p.text(x, "init.scheme", "a scheme name"); ok {
-			s, known := ParseScheme(name)
-			if !known {
-				p.errorf(x, "init.scheme", ErrUnknownName, "unknown scheme %q (want one of %s)", truncate(name), schemeList)
-				s = GlorotUniform
+		if s, ok := parseName(p, x, "init.scheme", "scheme", ParseScheme, schemeList); ok {
+			if s == 0 {
+				s = GlorotUniform // reported; keep later checks quiet
 			}
 			n.Init.Scheme = s
 		}
@@ -687,11 +701,7 @@ func (p *parser) train(n *Network, v *yaml.Node) {
 	p.mark("train", v)
 	f := p.fields(v, "train", "optimizer", "iterations", "batch", "rate", "tolerance")
 	if x, ok := f["optimizer"]; ok {
-		if name, ok := p.text(x, "train.optimizer", "an optimizer name"); ok {
-			o, known := ParseOptimizer(name)
-			if !known {
-				p.errorf(x, "train.optimizer", ErrUnknownName, "unknown optimizer %q (want one of %s)", truncate(name), optimList)
-			}
+		if o, ok := parseName(p, x, "train.optimizer", "optimizer", ParseOptimizer, optimList); ok {
 			n.Train.Optimizer = o
 		}
 	}
