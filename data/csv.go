@@ -55,6 +55,29 @@ type CSVOptions struct {
 	MaxLineBytes int
 	// MaxRows bounds the number of data rows; 0 means no limit.
 	MaxRows int
+	// Columns, when non-nil, picks the feature columns by name in this
+	// order and says how to read each; it replaces Features (which must
+	// then be nil). A column absent from the header is an error naming it.
+	Columns []Column
+	// MissingTokens are the cell texts (after trimming spaces) that count
+	// as missing in a feature column; nil means "", "?" and "NA". A missing
+	// cell reads as NaN in a column whose Column.Missing is set and is an
+	// error elsewhere.
+	MissingTokens []string
+	// Keep names columns whose text is copied to Set.Kept for every row
+	// (e.g. an id to join predictions back); they may also be features or
+	// the label.
+	Keep []string
+}
+
+// Column says how ReadCSV reads one feature column.
+type Column struct {
+	Name string
+	// Text keeps the cell text: a category column. X then holds the index
+	// of the text in Set.Texts[j].
+	Text bool
+	// Missing lets a missing token read as NaN instead of an error.
+	Missing bool
 }
 
 const (

@@ -14,6 +14,7 @@ var (
 	ErrNoHeader        = errors.New("data: missing header")                  // first row is all numbers
 	ErrFieldCount      = errors.New("data: wrong number of fields")          // a row has more or fewer fields than the header
 	ErrEmptyField      = errors.New("data: empty field")                     // a feature or single-label cell is empty
+	ErrMissingValue    = errors.New("data: missing value")                   // a missing token in a column that refuses missing cells
 	ErrNotNumber       = errors.New("data: not a number")                    // a feature cell does not parse as a number
 	ErrNotFinite       = errors.New("data: not a finite number")             // NaN, ±Inf, or out of float64 range
 	ErrUnknownClass    = errors.New("data: unknown class")                   // a label not among CSVOptions.Classes

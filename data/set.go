@@ -15,6 +15,19 @@ type Set struct {
 	Features   []string   // feature names in the order of X's columns
 	Multilabel bool       // Y is multi-hot: a row may carry none, one or several classes
 	Lines      []int      // 1-based line in the file of each row (for messages); may be nil for derived sets
+	// Texts holds, for each feature column read as text (a category
+	// column, CSVOptions.Columns[j].Text), the distinct cell texts of the
+	// file in order of first appearance; X[i, j] is then the index of row
+	// i's text in Texts[j]. It is nil for a file with no text columns, and
+	// Texts[j] is nil for a number column. In any column, NaN in X marks a
+	// missing cell (one of the missing tokens).
+	Texts [][]string
+	// Kept holds the text of the CSVOptions.Keep columns for each row
+	// (rows × len(Keep)), copied through untouched; nil without Keep.
+	Kept [][]string
+	// Label is the name of the label column in the file's header; "" when
+	// the file had none.
+	Label string
 }
 
 // Rows returns the number of rows.
@@ -98,6 +111,14 @@ func (s *Set) Subset(rows []int) *Set {
 		Classes:    slices.Clone(s.Classes),
 		Features:   slices.Clone(s.Features),
 		Multilabel: s.Multilabel,
+		Texts:      s.Texts, // read-only after reading: shared
+		Label:      s.Label,
+	}
+	if s.Kept != nil {
+		out.Kept = make([][]string, len(rows))
+		for k, i := range rows {
+			out.Kept[k] = s.Kept[i]
+		}
 	}
 	if len(rows) == 0 {
 		return out

@@ -105,19 +105,121 @@ func ParseScheme(name string) (Scheme, bool) {
 	return 0, false
 }
 
+// InputType is the type of one raw input. The zero value is NumberInput.
+type InputType int
+
+const (
+	NumberInput   InputType = iota // a real number: one input unit, imputed then standardised
+	CategoryInput                  // one of a set of levels (text): one unit per level, one-hot
+)
+
+var inputTypeNames = [...]string{NumberInput: "number", CategoryInput: "category"}
+
+// String returns the spec name of t: "number" or "category".
+func (t InputType) String() string {
+	if t >= 0 && int(t) < len(inputTypeNames) {
+		return inputTypeNames[t]
+	}
+	return fmt.Sprintf("InputType(%d)", int(t))
+}
+
+// MissingRule says what fills a missing cell of an input. The zero value,
+// MissingRefuse, makes a missing cell an error.
+type MissingRule int
+
+const (
+	MissingRefuse   MissingRule = iota // a missing cell is an error (the default)
+	MissingMean                        // number: the mean of the training rows' values
+	MissingMedian                      // number: the median of the training rows' values
+	MissingMode                        // number or category: the most frequent training value (the smallest on ties)
+	MissingConstant                    // number: Input.Fill
+	MissingLevel                       // category: a unit of its own, after the levels' units
+)
+
+var missingNames = [...]string{MissingRefuse: "refuse", MissingMean: "mean", MissingMedian: "median", MissingMode: "mode", MissingConstant: "constant", MissingLevel: "level"}
+
+// String returns the spec word of r, e.g. "median"; MissingConstant gives
+// "constant" (the spec writes the constant itself).
+func (r MissingRule) String() string {
+	if r >= 0 && int(r) < len(missingNames) {
+		return missingNames[r]
+	}
+	return fmt.Sprintf("MissingRule(%d)", int(r))
+}
+
+// UnknownRule says what a category level never seen in training does at
+// prediction. The zero value, UnknownRefuse, makes it an error.
+type UnknownRule int
+
+const (
+	UnknownRefuse UnknownRule = iota // an unknown level is an error (the default)
+	UnknownIgnore                    // an unknown level sets all the input's units to 0
+)
+
+var unknownNames = [...]string{UnknownRefuse: "refuse", UnknownIgnore: "ignore"}
+
+// String returns the spec word of r: "refuse" or "ignore".
+func (r UnknownRule) String() string {
+	if r >= 0 && int(r) < len(unknownNames) {
+		return unknownNames[r]
+	}
+	return fmt.Sprintf("UnknownRule(%d)", int(r))
+}
+
+// Input is the type and rules of one raw input. Its zero value is a number
+// input that refuses missing cells, which is what a bare name in `inputs`
+// means.
+type Input struct {
+	Type InputType
+	// Levels are a category's levels in unit order: declared in the spec,
+	// or learned from the training rows (then nil in the spec as written,
+	// and filled in the spec a model stores). nil for a number.
+	Levels  []string
+	Missing MissingRule
+	Fill    float64     // the constant of MissingConstant; 0 otherwise
+	Unknown UnknownRule // category only
+}
+
+// Units returns the number of input units of in: 1 for a number, and for a
+// category the number of levels, plus one with MissingLevel. A category
+// whose levels are not known yet has 0 units.
+func (in Input) Units() int {
+	if in.Type != CategoryInput {
+		return 1
+	}
+	if len(in.Levels) == 0 {
+		return 0
+	}
+	if in.Missing == MissingLevel {
+		return len(in.Levels) + 1
+	}
+	return len(in.Levels)
+}
+
+// DefaultMissingTokens are the cell texts that count as missing when a spec
+// has no missing_tokens.
+var DefaultMissingTokens = []string{"", "?", "NA"}
+
 // Network is a checked description of one network. Parse returns it with
 // every field resolved: activations and scheme are never zero, Classes is
 // never empty. Train fields may be zero, meaning "not set".
 type Network struct {
 	Version  int      // format version; 1
 	Name     string   // free text; may be empty
-	Inputs   int      // number of input features, ≥ 1
-	Features []string // input feature names when the spec lists them (len = Inputs), else nil
-	Hidden   []Layer  // hidden layers, input side first; nil when there are none (Parse never returns an empty non-nil slice)
-	Output   Output
-	Penalty  Penalty
-	Init     Init
-	Train    Train
+	Inputs   int      // number of raw inputs, ≥ 1 (a category input counts once)
+	Features []string // raw input names when the spec lists them (len = Inputs), else nil
+	// Types holds the type and rules of each raw input when the spec lists
+	// names (len = Inputs); nil means every input is a plain number, as
+	// with `inputs: N`. Parse sets it whenever Features is set.
+	Types []Input
+	// MissingTokens are the cell texts (after trimming spaces) that count
+	// as missing; Parse sets DefaultMissingTokens when the spec has none.
+	MissingTokens []string
+	Hidden        []Layer // hidden layers, input side first; nil when there are none (Parse never returns an empty non-nil slice)
+	Output        Output
+	Penalty       Penalty
+	Init          Init
+	Train         Train
 }
 
 // Layer is one hidden layer.
@@ -166,13 +268,58 @@ type Train struct {
 	Batch      int     // mini-batch rows for momentum/adam; 0 = all rows
 	Rate       float64 // learning rate for gd, momentum, adam; ≥ 0
 	Tolerance  float64 // gradient-norm tolerance; ≥ 0
+	// ClassWeights are per-class factors on the cross-entropy; the zero
+	// value weighs every class 1.
+	ClassWeights ClassWeights
 }
 
+// ClassWeights are per-class factors w_k on each row's cross-entropy term.
+// With Balanced, w_k = m/(K·m_k) for m training rows, K classes and m_k
+// rows of class k (for multi-label outputs, m_k counts the rows that carry
+// class k, and the weight applies to the positive side of each class).
+// Otherwise By maps class names to factors > 0; a class not named has 1.
+type ClassWeights struct {
+	Balanced bool
+	By       map[string]float64
+}
+
+// Set reports whether any class weight other than 1 is asked for.
+func (c ClassWeights) Set() bool { return c.Balanced || len(c.By) > 0 }
+
+// Width returns the number of input units of the net: Inputs when Types is
+// nil, else the sum of Types[i].Units(). It is 0 when a category input has
+// no levels yet (they are learned when the encoder is fitted).
+func (n *Network) Width() int {
+	if n.Types == nil {
+		return n.Inputs
+	}
+	w := 0
+	for _, t := range n.Types {
+		u := t.Units()
+		if u == 0 {
+			return 0
+		}
+		w += u
+	}
+	return w
+}
+
+// Resolved reports whether every category input has its levels, so that
+// Width and Sizes are the net's.
+func (n *Network) Resolved() bool { return n.Width() > 0 }
+
 // Sizes returns the layer widths from input to output:
-// Inputs, Hidden[0].Units, …, Output.Units().
+// Width(), Hidden[0].Units, …, Output.Units(). For a spec that is not
+// Resolved, an unresolved category counts as one unit (a lower bound).
 func (n *Network) Sizes() []int {
 	s := make([]int, 0, len(n.Hidden)+2)
-	s = append(s, n.Inputs)
+	w := n.Width()
+	if w == 0 {
+		for _, t := range n.Types {
+			w += max(t.Units(), 1)
+		}
+	}
+	s = append(s, w)
 	for _, h := range n.Hidden {
 		s = append(s, h.Units)
 	}
