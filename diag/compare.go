@@ -190,8 +190,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if err := checkCompareConfig(&cfg); err != nil {
 		return nil, err
 	}
-	net, err := nn.Compile(s)
-	if err != nil {
+	if err := train.CheckSpec(s); err != nil {
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {
@@ -216,10 +215,11 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 			return nil, fmt.Errorf("diag: holdout split: %w", err)
 		}
 	}
-	p, err := newProblem(net, trainSet, holdSet, cfg.NoScale, batch, cfg.Workers)
+	p, err := newProblem(s, trainSet, holdSet, cfg.NoScale, batch, cfg.Workers)
 	if err != nil {
 		return nil, err
 	}
+	net := p.net
 	seeds := make([]uint64, cfg.Seeds)
 	for k := range seeds {
 		seeds[k] = seed0 + uint64(k)
@@ -354,8 +354,16 @@ type problem struct {
 	warn    []string
 }
 
-func newProblem(net *nn.Net, trainSet, holdSet *data.Set, noScale bool, batch, workers int) (*problem, error) {
-	x, hx, _, warn := train.Prepare(trainSet, holdSet, noScale)
+func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batch, workers int) (*problem, error) {
+	prep, err := train.Prepare(s, trainSet, holdSet, noScale)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
+	}
+	x, hx, warn := prep.X, prep.HoldoutX, prep.Warnings
+	net, err := nn.Compile(prep.Spec)
+	if err != nil {
+		return nil, err
+	}
 	full, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Workers: workers})
 	if err != nil {
 		return nil, fmt.Errorf("diag: training rows: %w", err)

@@ -8,9 +8,9 @@ import (
 	"sort"
 
 	"github.com/seine-ml/seine/data"
-	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
+	"github.com/seine-ml/seine/train"
 )
 
 // Defaults of CurveConfig.
@@ -129,7 +129,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	if hold == 0 {
 		hold = DefaultHoldout
 	}
-	if _, err := nn.Compile(s); err != nil {
+	if err := train.CheckSpec(s); err != nil {
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {

@@ -6,10 +6,7 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/mat"
-
 	"github.com/seine-ml/seine/data"
-	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
 	"github.com/seine-ml/seine/train"
@@ -157,7 +154,7 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrConfig, cfg.Holdout)
 	}
 	for _, sp := range specs {
-		if _, err := nn.Compile(sp); err != nil {
+		if err := train.CheckSpec(sp); err != nil {
 			return nil, err
 		}
 		if err := checkSet(sp, set); err != nil {
@@ -287,19 +284,15 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 	}
 	m := res.Model
 	net := m.Net()
-	var sc *data.Scaler
-	if m.Mean != nil {
-		sc = &data.Scaler{Mean: m.Mean, Scale: m.Scale}
-	}
 	var out fitted
 	out.warn = res.Warnings
 	for _, part := range []struct {
 		set       *data.Set
 		cost, acc *float64
 	}{{tr, &out.trainCost, &out.trainAcc}, {va, &out.validCost, &out.validAcc}} {
-		x := mat.DenseCopyOf(part.set.X)
-		if sc != nil {
-			sc.Transform(x, x)
+		x, err := m.Encoder().EncodeSet(part.set)
+		if err != nil {
+			return fitted{}, fmt.Errorf("%w: %w", ErrConfig, err)
 		}
 		scr, err := train.NewScorer(net, x, part.set, fc.workers)
 		if err != nil {

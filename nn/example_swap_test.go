@@ -57,7 +57,7 @@ func Example_hotSwap() {
 	}
 	save := func(w float64) {
 		// params: the 2×1 weight block, then the 2 biases.
-		m, err := nn.NewModel(s, []float64{-w, w, 0, 0}, nil, nil, nil, nil)
+		m, err := nn.NewModel(s, []float64{-w, w, 0, 0}, nil, nil)
 		if err != nil {
 			log.Fatal(err)
 		}

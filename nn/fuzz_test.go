@@ -42,9 +42,9 @@ func fuzzSeeds(t testing.TB) map[string][]byte {
 	soft.Summary = Summary{Method: "lbfgs", Iterations: 12, Cost: 0.5, HoldoutCost: math.NaN(), Library: Version}
 	bin := testModel(t, spec.Sigmoid, []string{"no", "yes"}, false)
 	multi := testModel(t, spec.Sigmoid, []string{"p", "q", "r"}, true)
-	plain, err := NewModel(testSpec(2, nil, spec.Identity, outSoftmax), []float64{1, -1, 0.5, 2, 0, -2, 0.25, 0.5, -0.75}, nil, nil, nil, nil)
+	plain, err := NewModel(testSpec(2, nil, spec.Identity, outSoftmax), []float64{1, -1, 0.5, 2, 0, -2, 0.25, 0.5, -0.75}, nil, nil)
 	require.NoError(t, err)
-	deep, err := NewModel(testSpec(2, []int{3, 2}, spec.ReLU, outBinary), mustCompile(t, testSpec(2, []int{3, 2}, spec.ReLU, outBinary)).NewParams(), nil, nil, nil, nil)
+	deep, err := NewModel(testSpec(2, []int{3, 2}, spec.ReLU, outBinary), mustCompile(t, testSpec(2, []int{3, 2}, spec.ReLU, outBinary)).NewParams(), nil, nil)
 	require.NoError(t, err)
 
 	good := write(soft)
@@ -79,10 +79,14 @@ func fuzzSeeds(t testing.TB) map[string][]byte {
 	seeds["bad_encoding"] = edit(func(d map[string]any) { params(d)["encoding"] = "float32" })
 	seeds["bad_spec"] = edit(func(d map[string]any) { d["spec"] = "version: 1\ninputs: 3\nhidden:\n  - units: 1e12\n" })
 	seeds["bad_zero_scale"] = edit(func(d map[string]any) {
-		d["scaler"] = map[string]any{"mean": []float64{1, 2, 3}, "scale": []float64{1, 0, 1}}
+		d["encoder"].(map[string]any)["inputs"].([]any)[1].(map[string]any)["scale"] = 0
 	})
+	seeds["bad_encoder_name"] = edit(func(d map[string]any) {
+		d["encoder"].(map[string]any)["inputs"].([]any)[0].(map[string]any)["name"] = "other"
+	})
+	seeds["bad_case_key"] = bytes.Replace(good, []byte(`"classes": [`), []byte(`"CLASSES": ["p", "q", "r"], "classes": [`), 1)
 	seeds["bad_classes"] = edit(func(d map[string]any) { d["classes"] = []string{"only"} })
-	seeds["bad_duplicate_key"] = bytes.Replace(good, []byte(`"version": 1,`), []byte(`"version": 1, "version": 2,`), 1)
+	seeds["bad_duplicate_key"] = bytes.Replace(good, []byte(`"version": 2,`), []byte(`"version": 2, "version": 2,`), 1)
 	seeds["bad_nested"] = []byte(`{"format": ` + strings.Repeat("[", 64) + strings.Repeat("]", 64) + `}`)
 	seeds["bad_not_object"] = []byte(`[1, 2, 3]`)
 	seeds["bad_empty"] = nil
@@ -181,10 +185,8 @@ func checkAnswers(t *testing.T, m *Model) {
 	for _, k := range []float64{0, 1, -1} {
 		ok := true
 		for j := range x {
-			x[j] = k
-			if m.Mean != nil {
-				x[j] = m.Mean[j] + k*m.Scale[j]
-			}
+			in := m.Encoder().Inputs()[j]
+			x[j] = in.Mean + k*in.Scale
 			ok = ok && !math.IsInf(x[j], 0)
 		}
 		if !ok {

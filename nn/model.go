@@ -8,29 +8,36 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/spec"
 )
 
 // Model is a trained net ready to answer queries: the spec, the params, the
-// input scaling fitted on the training rows, the class and feature names and
-// a summary of how it was trained.
+// encoder fitted on the training rows (levels, fill values, scaling), the
+// class names and a summary of how it was trained.
 //
 // A Model is safe for concurrent use by many goroutines once built: its
 // prediction methods only read the params and take their scratch space from
 // an internal pool, so a single-row prediction allocates nothing after
 // warm-up. Do not modify the exported fields after the first prediction.
 //
-// Inputs are raw features in the order of Features: the model applies its
-// own scaling, x' = (x − Mean)/Scale, before the forward pass.
+// The float64 prediction methods take coded rows: one value per raw input,
+// in the order of Features — a number for a number input, the index in its
+// levels for a category input, NaN for a missing value (see
+// encode.Encoder). For a model whose inputs are all numbers that is simply
+// the raw feature row. The model expands and scales it itself before the
+// forward pass. Rows from outside the program go through Bind,
+// PredictRecord or ProbabilitiesRecord, which check every value and return
+// errors instead.
 type Model struct {
-	Spec     *spec.Network
+	Spec     *spec.Network // the resolved spec: category inputs hold their levels
 	Params   []float64
-	Mean     []float64 // per-feature centre; nil = no scaling
-	Scale    []float64 // per-feature divisor; nil = no scaling
 	Classes  []string
-	Features []string
+	Features []string // the raw inputs' names, from the encoder
+	Label    string   // the name of the label column in the training file; "" if unknown
 	Summary  Summary
 
+	enc       *encode.Encoder
 	net       *Net
 	pool      sync.Pool // *rowScratch
 	batchPool sync.Pool // *batchScratch
@@ -55,12 +62,13 @@ type Summary struct {
 }
 
 // Version is the library version written into model summaries.
-const Version = "0.1.0"
+const Version = "0.2.0"
 
 // rowScratch is the per-call space of a single-row prediction.
 type rowScratch struct {
 	ws    *Workspace
-	in    []float64 // scaled input
+	coded []float64 // coded row (Bind)
+	in    []float64 // expanded input units
 	out   []float64 // output units
 	probs []float64 // class probabilities
 }
@@ -69,11 +77,12 @@ type rowScratch struct {
 var ErrModel = errors.New("nn: invalid model")
 
 // NewModel checks the parts of a model against each other and returns it
-// ready for prediction. params is used as is (not copied). mean and scale may
-// both be nil (no scaling) or both have one entry per input. classes and
-// features may be nil, meaning the spec's.
-func NewModel(s *spec.Network, params, mean, scale []float64, classes, features []string) (*Model, error) {
-	m := &Model{Spec: s, Params: params, Mean: mean, Scale: scale, Classes: classes, Features: features}
+// ready for prediction. s is the resolved spec (enc.Resolve of the spec
+// trained); params is used as is (not copied). enc nil means inputs that
+// are all plain numbers, unscaled, named by s.Features (or "x1" … when s
+// gives a count). classes may be nil, meaning the spec's.
+func NewModel(s *spec.Network, params []float64, enc *encode.Encoder, classes []string) (*Model, error) {
+	m := &Model{Spec: s, Params: params, Classes: classes, enc: enc}
 	if err := m.init(); err != nil {
 		return nil, err
 	}
@@ -98,39 +107,44 @@ func (m *Model) init() error {
 			return fmt.Errorf("%w: param %d is %v", ErrModel, i, v)
 		}
 	}
-	if (m.Mean == nil) != (m.Scale == nil) {
-		return fmt.Errorf("%w: scaler has mean without scale or scale without mean", ErrModel)
-	}
-	if m.Mean != nil {
-		if len(m.Mean) != net.Inputs() || len(m.Scale) != net.Inputs() {
-			return fmt.Errorf("%w: scaler has %d means and %d scales for %d inputs", ErrModel, len(m.Mean), len(m.Scale), net.Inputs())
+	if m.enc == nil {
+		if m.Spec.Features != nil && len(m.Spec.Features) != m.Spec.Inputs {
+			return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.Spec.Features), m.Spec.Inputs)
 		}
-		for i := range m.Mean {
-			if !finite(m.Mean[i]) || !finite(m.Scale[i]) || m.Scale[i] == 0 {
-				return fmt.Errorf("%w: scaler entry %d (mean %v, scale %v) must be finite with a non-zero scale", ErrModel, i, m.Mean[i], m.Scale[i])
-			}
+		if m.enc, err = encode.Numbers(m.Spec.Features, make([]float64, m.Spec.Inputs), ones(m.Spec.Inputs)); err != nil {
+			return fmt.Errorf("%w: %w", ErrModel, err)
 		}
 	}
+	if err := m.enc.CheckSpec(m.Spec); err != nil {
+		return fmt.Errorf("%w: the encoder disagrees with the spec: %w", ErrModel, err)
+	}
+	if m.enc.Width() != net.Inputs() {
+		return fmt.Errorf("%w: the encoder makes %d input units, the net takes %d", ErrModel, m.enc.Width(), net.Inputs())
+	}
+	m.Features = m.enc.Names()
 	if m.Classes == nil {
 		m.Classes = m.Spec.Output.Classes
 	}
 	if len(m.Classes) != len(m.Spec.Output.Classes) {
 		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.Classes), len(m.Spec.Output.Classes))
 	}
-	if m.Features == nil {
-		m.Features = m.Spec.Features
-	}
-	if m.Features != nil && len(m.Features) != net.Inputs() {
-		return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.Features), net.Inputs())
-	}
 	m.net = net
+	n := m.enc.NumInputs()
 	m.batchPool.New = func() any {
-		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), probs: make([]float64, len(m.Classes))}
+		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), coded: make([]float64, n), probs: make([]float64, len(m.Classes))}
 	}
 	m.pool.New = func() any {
-		return &rowScratch{ws: net.NewWorkspace(1), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
+		return &rowScratch{ws: net.NewWorkspace(1), coded: make([]float64, n), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
 	}
 	return nil
+}
+
+func ones(n int) []float64 {
+	v := make([]float64, n)
+	for i := range v {
+		v[i] = 1
+	}
+	return v
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -138,8 +152,11 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // Net returns the compiled net of m.
 func (m *Model) Net() *Net { return m.net }
 
-// Inputs returns the number of raw features a row must have.
-func (m *Model) Inputs() int { return m.net.Inputs() }
+// Encoder returns the model's encoder.
+func (m *Model) Encoder() *encode.Encoder { return m.enc }
+
+// Inputs returns the number of raw inputs: the length of a coded row.
+func (m *Model) Inputs() int { return m.enc.NumInputs() }
 
 // NumClasses returns the number of classes.
 func (m *Model) NumClasses() int { return len(m.Classes) }
@@ -147,27 +164,16 @@ func (m *Model) NumClasses() int { return len(m.Classes) }
 // Multilabel reports whether a row may carry several classes.
 func (m *Model) Multilabel() bool { return m.Spec.Output.Multilabel }
 
-// scale writes the scaled x into dst.
-func (m *Model) scale(dst, x []float64) {
-	if m.Mean == nil {
-		copy(dst, x)
-		return
-	}
-	for i, v := range x {
-		dst[i] = (v - m.Mean[i]) / m.Scale[i]
-	}
-}
-
-// classProbs runs one raw row through the net and returns pooled scratch
+// classProbs runs one coded row through the net and returns pooled scratch
 // whose probs hold the class probabilities; the caller puts it back. For
 // the binary sigmoid net the one unit is the probability p of Classes[1],
 // and probs = [1−p, p].
 func (m *Model) classProbs(x []float64) *rowScratch {
-	if len(x) != m.net.Inputs() {
-		panic(fmt.Sprintf("nn: row has %d features, the model takes %d", len(x), m.net.Inputs()))
+	if len(x) != m.enc.NumInputs() {
+		panic(fmt.Sprintf("nn: row has %d values, the model takes %d inputs", len(x), m.enc.NumInputs()))
 	}
 	sc := m.pool.Get().(*rowScratch)
-	m.scale(sc.in, x)
+	m.enc.Expand(sc.in, x)
 	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
 	if len(sc.out) == 1 && len(sc.probs) == 2 {
 		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
@@ -177,7 +183,7 @@ func (m *Model) classProbs(x []float64) *rowScratch {
 	return sc
 }
 
-// Probabilities writes the probability of each class for the raw feature row
+// Probabilities writes the probability of each class for the coded row
 // x into dst and returns it; dst is allocated when it is nil or too short.
 // For softmax outputs the entries sum to 1; for sigmoid outputs each entry is
 // the independent probability of its class. It panics if len(x) is not
@@ -194,8 +200,8 @@ func (m *Model) Probabilities(dst, x []float64) []float64 {
 	return dst
 }
 
-// Predict returns the index in Classes of the most probable class of the raw
-// feature row x (the first one on a tie). It allocates nothing after warm-up.
+// Predict returns the index in Classes of the most probable class of the
+// coded row x (the first one on a tie). It allocates nothing after warm-up.
 func (m *Model) Predict(x []float64) int {
 	sc := m.classProbs(x)
 	k := argmax(sc.probs)
@@ -262,7 +268,8 @@ const batchBlock = 512
 // batchScratch is the pooled space of a batch prediction.
 type batchScratch struct {
 	ws    *Workspace
-	in    *mat.Dense // batchBlock × inputs: scaled rows
+	in    *mat.Dense // batchBlock × input units: expanded rows
+	coded []float64  // one coded row, for rows not held in a raw matrix
 	probs []float64  // class probabilities of one row
 }
 
@@ -270,8 +277,8 @@ type batchScratch struct {
 // with each row's index and class probabilities (valid during the call).
 func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
 	r, c := x.Dims()
-	if c != m.net.Inputs() {
-		panic(fmt.Sprintf("nn: rows have %d features, the model takes %d", c, m.net.Inputs()))
+	if c != m.enc.NumInputs() {
+		panic(fmt.Sprintf("nn: rows have %d values, the model takes %d inputs", c, m.enc.NumInputs()))
 	}
 	sc := m.batchPool.Get().(*batchScratch)
 	defer m.batchPool.Put(sc)
@@ -282,17 +289,17 @@ func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
 			row := sc.in.RawRowView(i)
 			if isRaw {
 				b := raw.RawMatrix()
-				copy(row, b.Data[(start+i)*b.Stride:(start+i)*b.Stride+c])
+				m.enc.Expand(row, b.Data[(start+i)*b.Stride:(start+i)*b.Stride+c])
 			} else {
-				for j := range row {
-					row[j] = x.At(start+i, j)
+				for j := range sc.coded {
+					sc.coded[j] = x.At(start+i, j)
 				}
+				m.enc.Expand(row, sc.coded)
 			}
-			m.scale(row, row)
 		}
 		block := sc.in
 		if n < batchBlock {
-			block = sc.in.Slice(0, n, 0, c).(*mat.Dense)
+			block = sc.in.Slice(0, n, 0, m.net.Inputs()).(*mat.Dense)
 		}
 		out := m.net.Forward(sc.ws, m.Params, block)
 		for i := 0; i < n; i++ {

@@ -17,6 +17,7 @@ import (
 	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -36,7 +37,9 @@ func testModel(t testing.TB, out spec.Activation, classes []string, multilabel b
 	for i := range p {
 		p[i] *= 3 // make the outputs far from uniform
 	}
-	m, err := NewModel(s, p, []float64{1, -2, 0.5}, []float64{2, 0.5, 3}, nil, nil)
+	enc, err := encode.Numbers(s.Features, []float64{1, -2, 0.5}, []float64{2, 0.5, 3})
+	require.NoError(t, err)
+	m, err := NewModel(s, p, enc, nil)
 	require.NoError(t, err)
 	return m
 }
@@ -61,8 +64,7 @@ func TestModelRoundTripBitIdentical(t *testing.T) {
 		for i := range m.Params {
 			require.Equal(t, math.Float64bits(m.Params[i]), math.Float64bits(got.Params[i]), "param %d", i)
 		}
-		assert.Equal(t, m.Mean, got.Mean)
-		assert.Equal(t, m.Scale, got.Scale)
+		assert.True(t, m.Encoder().Equal(got.Encoder()))
 		assert.Equal(t, m.Classes, got.Classes)
 		assert.Equal(t, m.Features, got.Features)
 		assert.True(t, math.IsNaN(got.Summary.HoldoutCost))
@@ -192,6 +194,9 @@ func TestReadModelRejects(t *testing.T) {
 		return string(b)
 	}
 	params := func(doc map[string]any) map[string]any { return doc["params"].(map[string]any) }
+	input := func(doc map[string]any, i int) map[string]any {
+		return doc["encoder"].(map[string]any)["inputs"].([]any)[i].(map[string]any)
+	}
 	flipped := []byte(good.String())
 	i := bytes.Index(flipped, []byte(`"data": "`)) + 12
 	flipped[i] ^= 0x01
@@ -205,17 +210,33 @@ func TestReadModelRejects(t *testing.T) {
 		{"array", "[1,2]", ErrFormat, ""},
 		{"truncated", good.String()[:good.Len()/2], ErrFormat, ""},
 		{"wrong format", edit(func(d map[string]any) { d["format"] = "other" }), ErrFormat, `"other"`},
-		{"future version", edit(func(d map[string]any) { d["version"] = 2 }), ErrVersion, "version 2"},
+		{"future version", edit(func(d map[string]any) { d["version"] = 3 }), ErrVersion, "version 3"},
 		{"checksum", edit(func(d map[string]any) { d["sha256"] = strings.Repeat("0", 64) }), ErrChecksum, ""},
 		{"flipped byte", string(flipped), ErrChecksum, ""},
 		{"count lies", edit(func(d map[string]any) { params(d)["count"] = 7 }), ErrModel, "count 7"},
 		{"unknown key", edit(func(d map[string]any) { d["extra"] = 1 }), ErrFormat, "extra"},
-		{"duplicate key", strings.Replace(good.String(), `"version": 1,`, `"version": 1, "version": 1,`, 1), ErrFormat, "duplicate key"},
+		{"duplicate key", strings.Replace(good.String(), `"version": 2,`, `"version": 2, "version": 2,`, 1), ErrFormat, "duplicate key"},
+		// Go's decoder matches keys whatever their case; other JSON readers
+		// would see "classes" where this one saw "CLASSES" (issue 13).
+		{"keys differing in case", strings.Replace(good.String(), `"classes": [`, `"CLASSES": ["p", "q", "r"], "classes": [`, 1), ErrFormat, "CLASSES"},
+		{"key in another case", strings.Replace(good.String(), `"classes": [`, `"Classes": [`, 1), ErrFormat, "Classes"},
 		{"bad spec", edit(func(d map[string]any) { d["spec"] = "version: 1\ninputs: 0\n" }), ErrModel, "inputs"},
-		{"scaler length", edit(func(d map[string]any) { d["scaler"] = map[string]any{"mean": []float64{1}, "scale": []float64{1}} }), ErrModel, "scaler"},
-		{"zero scale", edit(func(d map[string]any) {
-			d["scaler"] = map[string]any{"mean": []float64{1, 2, 3}, "scale": []float64{1, 0, 1}}
-		}), ErrModel, "scale"},
+		{"v1 fields in v2", edit(func(d map[string]any) { d["scaler"] = map[string]any{"mean": []float64{1}, "scale": []float64{1}} }), ErrFormat, "encoder"},
+		{"zero scale", edit(func(d map[string]any) { input(d, 1)["scale"] = 0 }), ErrModel, "scale"},
+		{"negative scale", edit(func(d map[string]any) { input(d, 1)["scale"] = -2 }), ErrModel, "scale"},
+		{"encoder disagrees with spec: name", edit(func(d map[string]any) { input(d, 0)["name"] = "other" }), ErrModel, "disagrees"},
+		{"encoder disagrees with spec: type", edit(func(d map[string]any) {
+			in := input(d, 2)
+			in["type"], in["levels"], in["unknown"] = "category", []string{"p", "q"}, "refuse"
+			delete(in, "mean")
+			delete(in, "scale")
+		}), ErrModel, "disagrees"},
+		{"encoder fill under refuse", edit(func(d map[string]any) { input(d, 0)["fill"] = 3 }), ErrModel, "refuse"},
+		{"encoder unknown rule word", edit(func(d map[string]any) { input(d, 0)["missing"] = "guess" }), ErrModel, "guess"},
+		{"encoder input missing", edit(func(d map[string]any) {
+			e := d["encoder"].(map[string]any)
+			e["inputs"] = e["inputs"].([]any)[:2]
+		}), ErrModel, "2 inputs"},
 		{"nested bomb", strings.Repeat("[", 100000) + strings.Repeat("]", 100000), ErrFormat, ""},
 	}
 	for _, tt := range tests {
@@ -301,5 +322,46 @@ func seal(t testing.TB, doc map[string]any) {
 		sc = &fileScaler{Mean: nums(v["mean"]), Scale: nums(v["scale"])}
 	}
 	spec, _ := doc["spec"].(string)
-	doc["sha256"] = digest(spec, strs(doc["classes"]), strs(doc["features"]), sc, raw)
+	if v, _ := doc["version"].(float64); v == 1 {
+		doc["sha256"] = digestV1(spec, strs(doc["classes"]), strs(doc["features"]), sc, raw)
+		return
+	}
+	var fe fileEncoder
+	if e, ok := doc["encoder"]; ok {
+		b, err := json.Marshal(e)
+		require.NoError(t, err)
+		require.NoError(t, json.Unmarshal(b, &fe))
+	}
+	label, _ := doc["label"].(string)
+	doc["sha256"] = digest(spec, strs(doc["classes"]), label, &fe, raw)
+}
+
+// A model file of format version 1 (written by seine 0.1.0, before inputs
+// had types: features and a scaler instead of an encoder) still loads, as
+// plain number inputs scaled by its scaler, and predicts as the version 2
+// file it saves to.
+func TestReadModelVersion1(t *testing.T) {
+	m, err := Load(filepath.Join("testdata", "v1-triage.seine.json"))
+	require.NoError(t, err)
+	require.Equal(t, 16, m.Inputs())
+	enc := m.Encoder()
+	for _, in := range enc.Inputs() {
+		assert.Equal(t, spec.NumberInput, in.Type)
+		assert.Equal(t, spec.MissingRefuse, in.Missing)
+		assert.Greater(t, in.Scale, 0.0)
+	}
+	var buf bytes.Buffer
+	_, err = m.WriteTo(&buf)
+	require.NoError(t, err)
+	assert.Contains(t, buf.String(), `"version": 2`)
+	got, err := ReadModel(&buf)
+	require.NoError(t, err)
+	x := make([]float64, m.Inputs())
+	for i := range x {
+		x[i] = enc.Inputs()[i].Mean + 0.5*float64(i%3-1)*enc.Inputs()[i].Scale
+	}
+	a, b := m.Probabilities(nil, x), got.Probabilities(nil, x)
+	for k := range a {
+		assert.Equal(t, math.Float64bits(a[k]), math.Float64bits(b[k]))
+	}
 }

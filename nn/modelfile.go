@@ -9,13 +9,16 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"hash"
 	"io"
 	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -23,33 +26,52 @@ import (
 //
 //	{
 //	  "format":   "seine-model",
-//	  "version":  1,
-//	  "spec":     "<the spec as canonical YAML text>",
+//	  "version":  2,
+//	  "spec":     "<the resolved spec as canonical YAML text>",
 //	  "classes":  ["human", …],
-//	  "features": ["req_per_min", …] or null,
-//	  "scaler":   {"mean": […], "scale": […]} or null,
+//	  "label":    "class",
+//	  "encoder":  {"missing_tokens": ["", "?", "NA"],
+//	               "inputs": [{"name": "req_per_min", "type": "number",
+//	                           "missing": "median", "fill": 12.5,
+//	                           "mean": 30.1, "scale": 11.7},
+//	                          {"name": "plan", "type": "category",
+//	                           "levels": ["basic", "pro", "team"],
+//	                           "missing": "mode", "fill": 1,
+//	                           "unknown": "ignore"}, …]},
 //	  "summary":  {…},
 //	  "params":   {"count": P, "encoding": "float64-le-base64",
 //	               "data": "<base64 of P little-endian IEEE 754 doubles>"},
 //	  "sha256":   "<hex of the content digest>"
 //	}
 //
+// "fill" is the value that replaces a missing number (null under the rule
+// refuse), or for a category under the rule mode the index of the level
+// that replaces a missing value. "mean" and "scale" standardise a number
+// after filling: x' = (x − mean)/scale.
+//
 // The content digest is the SHA-256 of everything that changes what the
 // model predicts, in a fixed binary form: the spec text, the class names,
-// the feature names, the scaler and the raw params bytes, each preceded by
-// its length as a little-endian uint64 (a nil list or scaler as 2⁶⁴−1). The
-// summary is informational and left out. So a changed digit anywhere that
-// matters (a scaler mean, a class name, a layer width) fails the check
-// instead of silently shifting every prediction.
+// the label name, the encoder (missing tokens, then per input its name,
+// type, levels, rules, fill, mean and scale) and the raw params bytes, each
+// preceded by its length as a little-endian uint64 (a nil list as 2⁶⁴−1)
+// and numbers as their IEEE 754 bits. The summary is informational and left
+// out. So a changed digit anywhere that matters (a scaler mean, a level, a
+// layer width) fails the check instead of silently shifting every
+// prediction.
+//
+// Version 1 files, written before inputs had types, hold "features" (names
+// or null) and "scaler" ({"mean": […], "scale": […]} or null) instead of
+// "label" and "encoder", and a digest over spec, classes, features, scaler
+// and params. They still load: every input is a plain number.
 //
 // The params are stored as raw bits so that they round-trip bit for bit;
-// the scaler's numbers are written in the shortest form that reads back to
-// the same float64 (strconv 'g', -1), which also round-trips exactly.
-// Object keys must be unique: a duplicate key anywhere is an error (RFC 8259
-// §4 leaves their meaning to the reader; this one refuses to guess).
+// other numbers are written in the shortest form that reads back to the
+// same float64 (strconv 'g', -1), which also round-trips exactly. Object
+// keys must be unique: a duplicate key anywhere is an error (RFC 8259 §4
+// leaves their meaning to the reader; this one refuses to guess).
 const (
 	FormatName    = "seine-model"
-	FormatVersion = 1
+	FormatVersion = 2
 	paramEncoding = "float64-le-base64"
 )
 
@@ -65,15 +87,33 @@ var (
 )
 
 type fileModel struct {
-	Format   string      `json:"format"`
-	Version  int         `json:"version"`
-	Spec     string      `json:"spec"`
-	Classes  []string    `json:"classes"`
-	Features []string    `json:"features"`
-	Scaler   *fileScaler `json:"scaler"`
-	Summary  fileSummary `json:"summary"`
-	Params   fileParams  `json:"params"`
-	SHA256   string      `json:"sha256"`
+	Format   string       `json:"format"`
+	Version  int          `json:"version"`
+	Spec     string       `json:"spec"`
+	Classes  []string     `json:"classes"`
+	Label    *string      `json:"label,omitempty"`    // version 2
+	Encoder  *fileEncoder `json:"encoder,omitempty"`  // version 2
+	Features []string     `json:"features,omitempty"` // version 1
+	Scaler   *fileScaler  `json:"scaler,omitempty"`   // version 1
+	Summary  fileSummary  `json:"summary"`
+	Params   fileParams   `json:"params"`
+	SHA256   string       `json:"sha256"`
+}
+
+type fileEncoder struct {
+	MissingTokens []string    `json:"missing_tokens"`
+	Inputs        []fileInput `json:"inputs"`
+}
+
+type fileInput struct {
+	Name    string   `json:"name"`
+	Type    string   `json:"type"`
+	Levels  []string `json:"levels,omitempty"`
+	Missing string   `json:"missing"`
+	Fill    *float64 `json:"fill"`
+	Mean    *float64 `json:"mean,omitempty"`
+	Scale   *float64 `json:"scale,omitempty"`
+	Unknown string   `json:"unknown,omitempty"`
 }
 
 type fileScaler struct {
@@ -87,49 +127,171 @@ type fileParams struct {
 	Data     string `json:"data"`
 }
 
-// digest returns the hex content digest of a model file's parts (see the
-// format description above).
-func digest(specText string, classes, features []string, sc *fileScaler, raw []byte) string {
-	h := sha256.New()
-	var n [8]byte
-	length := func(k int, isNil bool) {
-		v := uint64(k)
-		if isNil {
-			v = math.MaxUint64
-		}
-		binary.LittleEndian.PutUint64(n[:], v)
-		h.Write(n[:])
+// hasher writes the digest's fixed binary form.
+type hasher struct {
+	h hash.Hash
+	n [8]byte
+}
+
+func (h *hasher) length(k int, isNil bool) {
+	v := uint64(k)
+	if isNil {
+		v = math.MaxUint64
 	}
-	text := func(t string) {
-		length(len(t), false)
-		h.Write([]byte(t))
+	binary.LittleEndian.PutUint64(h.n[:], v)
+	h.h.Write(h.n[:])
+}
+
+func (h *hasher) text(t string) {
+	h.length(len(t), false)
+	h.h.Write([]byte(t))
+}
+
+func (h *hasher) list(l []string) {
+	h.length(len(l), l == nil)
+	for _, t := range l {
+		h.text(t)
 	}
-	list := func(l []string) {
-		length(len(l), l == nil)
-		for _, t := range l {
-			text(t)
-		}
+}
+
+func (h *hasher) float(x float64) {
+	binary.LittleEndian.PutUint64(h.n[:], math.Float64bits(x))
+	h.h.Write(h.n[:])
+}
+
+func (h *hasher) floats(v []float64) {
+	h.length(len(v), v == nil)
+	for _, x := range v {
+		h.float(x)
 	}
-	floats := func(v []float64) {
-		length(len(v), v == nil)
-		for _, x := range v {
-			binary.LittleEndian.PutUint64(n[:], math.Float64bits(x))
-			h.Write(n[:])
-		}
-	}
-	text(specText)
-	list(classes)
-	list(features)
+}
+
+func (h *hasher) sum(raw []byte) string {
+	h.length(len(raw), false)
+	h.h.Write(raw)
+	return hex.EncodeToString(h.h.Sum(nil))
+}
+
+// digestV1 returns the hex content digest of a version 1 file's parts.
+func digestV1(specText string, classes, features []string, sc *fileScaler, raw []byte) string {
+	h := &hasher{h: sha256.New()}
+	h.text(specText)
+	h.list(classes)
+	h.list(features)
 	if sc == nil {
-		length(0, true)
+		h.length(0, true)
 	} else {
-		length(2, false)
-		floats(sc.Mean)
-		floats(sc.Scale)
+		h.length(2, false)
+		h.floats(sc.Mean)
+		h.floats(sc.Scale)
 	}
-	length(len(raw), false)
-	h.Write(raw)
-	return hex.EncodeToString(h.Sum(nil))
+	return h.sum(raw)
+}
+
+// digest returns the hex content digest of a version 2 file's parts (see
+// the format description above). Absent numbers (null or left out) count
+// as NaN.
+func digest(specText string, classes []string, label string, enc *fileEncoder, raw []byte) string {
+	h := &hasher{h: sha256.New()}
+	h.text(specText)
+	h.list(classes)
+	h.text(label)
+	h.list(enc.MissingTokens)
+	h.length(len(enc.Inputs), enc.Inputs == nil)
+	num := func(p *float64) {
+		if p == nil {
+			h.float(math.NaN())
+			return
+		}
+		h.float(*p)
+	}
+	for _, t := range enc.Inputs {
+		h.text(t.Name)
+		h.text(t.Type)
+		h.list(t.Levels)
+		h.text(t.Missing)
+		h.text(t.Unknown)
+		num(t.Fill)
+		num(t.Mean)
+		num(t.Scale)
+	}
+	return h.sum(raw)
+}
+
+// toFileEncoder is the file form of enc.
+func toFileEncoder(enc *encode.Encoder) *fileEncoder {
+	fe := &fileEncoder{MissingTokens: enc.MissingTokens()}
+	for _, t := range enc.Inputs() {
+		fi := fileInput{Name: t.Name, Type: t.Type.String(), Missing: t.Missing.String(), Fill: nullable(t.Fill)}
+		if t.Type == spec.CategoryInput {
+			fi.Levels = t.Levels
+			fi.Unknown = t.Unknown.String()
+		} else {
+			mean, scale := t.Mean, t.Scale
+			fi.Mean, fi.Scale = &mean, &scale
+		}
+		fe.Inputs = append(fe.Inputs, fi)
+	}
+	return fe
+}
+
+// fromFileEncoder builds the encoder a file describes.
+func fromFileEncoder(fe *fileEncoder) (*encode.Encoder, error) {
+	if fe.MissingTokens == nil {
+		return nil, fmt.Errorf("%w: encoder.missing_tokens is missing", ErrFormat)
+	}
+	in := make([]encode.Input, len(fe.Inputs))
+	for i, fi := range fe.Inputs {
+		where := fmt.Sprintf("encoder.inputs[%d]", i)
+		t := &in[i]
+		t.Name, t.Levels, t.Fill = fi.Name, fi.Levels, fromNullable(fi.Fill)
+		switch fi.Type {
+		case "number":
+			t.Type = spec.NumberInput
+			if fi.Mean == nil || fi.Scale == nil {
+				return nil, fmt.Errorf("%w: %s: a number needs mean and scale", ErrModel, where)
+			}
+			t.Mean, t.Scale = *fi.Mean, *fi.Scale
+		case "category":
+			t.Type = spec.CategoryInput
+			if fi.Mean != nil || fi.Scale != nil {
+				return nil, fmt.Errorf("%w: %s: a category has no mean or scale", ErrModel, where)
+			}
+		default:
+			return nil, fmt.Errorf("%w: %s.type is %q, want number or category", ErrModel, where, fi.Type)
+		}
+		var ok bool
+		if t.Missing, ok = parseMissing(fi.Missing); !ok {
+			return nil, fmt.Errorf("%w: %s.missing is %q", ErrModel, where, fi.Missing)
+		}
+		switch fi.Unknown {
+		case "", "refuse":
+			if fi.Unknown == "" && t.Type == spec.CategoryInput {
+				return nil, fmt.Errorf("%w: %s.unknown is missing", ErrModel, where)
+			}
+		case "ignore":
+			t.Unknown = spec.UnknownIgnore
+		default:
+			return nil, fmt.Errorf("%w: %s.unknown is %q", ErrModel, where, fi.Unknown)
+		}
+		if t.Missing == spec.MissingRefuse && fi.Fill != nil {
+			return nil, fmt.Errorf("%w: %s: fill %v under the rule refuse", ErrModel, where, *fi.Fill)
+		}
+	}
+	enc, err := encode.New(in, fe.MissingTokens)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrModel, err)
+	}
+	return enc, nil
+}
+
+func parseMissing(w string) (spec.MissingRule, bool) {
+	for r := spec.MissingRefuse; r <= spec.MissingLevel; r++ {
+		if r.String() == w {
+			return r, true
+		}
+	}
+	return 0, false
 }
 
 // fileSummary is Summary with NaN written as null.
@@ -178,15 +340,13 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	for i, v := range m.Params {
 		binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(v))
 	}
+	label := m.Label
 	f := fileModel{
 		Format: FormatName, Version: FormatVersion, Spec: y.String(),
-		Classes: m.Classes, Features: m.Features,
+		Classes: m.Classes, Label: &label, Encoder: toFileEncoder(m.enc),
 		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: base64.StdEncoding.EncodeToString(raw)},
 	}
-	if m.Mean != nil {
-		f.Scaler = &fileScaler{Mean: m.Mean, Scale: m.Scale}
-	}
-	f.SHA256 = digest(f.Spec, f.Classes, f.Features, f.Scaler, raw)
+	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, raw)
 	s := m.Summary
 	f.Summary = fileSummary{
 		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status,
@@ -253,8 +413,30 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%w: params data: %w", ErrFormat, err)
 	}
-	if digest(f.Spec, f.Classes, f.Features, f.Scaler, raw) != strings.ToLower(f.SHA256) {
-		return nil, fmt.Errorf("%w: the contents do not match the file's sha256 (changed after it was written?)", ErrChecksum)
+	var enc *encode.Encoder
+	label := ""
+	switch f.Version {
+	case 1:
+		if f.Encoder != nil || f.Label != nil {
+			return nil, fmt.Errorf("%w: a version 1 file has no encoder or label", ErrFormat)
+		}
+		if digestV1(f.Spec, f.Classes, f.Features, f.Scaler, raw) != strings.ToLower(f.SHA256) {
+			return nil, fmt.Errorf("%w: the contents do not match the file's sha256 (changed after it was written?)", ErrChecksum)
+		}
+	default:
+		if f.Features != nil || f.Scaler != nil {
+			return nil, fmt.Errorf("%w: a version %d file keeps features and scaling in its encoder", ErrFormat, f.Version)
+		}
+		if f.Encoder == nil || f.Label == nil {
+			return nil, fmt.Errorf("%w: the encoder or the label is missing", ErrFormat)
+		}
+		label = *f.Label
+		if digest(f.Spec, f.Classes, label, f.Encoder, raw) != strings.ToLower(f.SHA256) {
+			return nil, fmt.Errorf("%w: the contents do not match the file's sha256 (changed after it was written?)", ErrChecksum)
+		}
+		if enc, err = fromFileEncoder(f.Encoder); err != nil {
+			return nil, err
+		}
 	}
 	s, err := spec.Parse(strings.NewReader(f.Spec))
 	if err != nil {
@@ -270,13 +452,12 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	for i := range params {
 		params[i] = math.Float64frombits(binary.LittleEndian.Uint64(raw[8*i:]))
 	}
-	m := &Model{Spec: s, Params: params, Classes: f.Classes, Features: f.Features}
-	if f.Scaler != nil {
-		m.Mean, m.Scale = f.Scaler.Mean, f.Scaler.Scale
-		if m.Mean == nil || m.Scale == nil {
-			return nil, fmt.Errorf("%w: scaler needs both mean and scale", ErrModel)
+	if f.Version == 1 {
+		if enc, err = v1Encoder(s, f.Features, f.Scaler); err != nil {
+			return nil, err
 		}
 	}
+	m := &Model{Spec: s, Params: params, Classes: f.Classes, Label: label, enc: enc}
 	fs := f.Summary
 	m.Summary = Summary{
 		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: fs.Status,
@@ -289,6 +470,61 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	}
 	return m, nil
 }
+
+// v1Encoder is the encoder of a version 1 file: plain numbers named by
+// features (or the spec's names, or "x1" …), scaled by sc when it is there.
+func v1Encoder(s *spec.Network, features []string, sc *fileScaler) (*encode.Encoder, error) {
+	if features == nil {
+		features = s.Features
+	}
+	if features != nil && len(features) != s.Inputs {
+		return nil, fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(features), s.Inputs)
+	}
+	if sc != nil && (sc.Mean == nil || sc.Scale == nil) {
+		return nil, fmt.Errorf("%w: scaler needs both mean and scale", ErrModel)
+	}
+	if sc != nil && (len(sc.Mean) != s.Inputs || len(sc.Scale) != s.Inputs) {
+		return nil, fmt.Errorf("%w: scaler has %d means and %d scales for %d inputs", ErrModel, len(sc.Mean), len(sc.Scale), s.Inputs)
+	}
+	var mean, scale []float64
+	if sc != nil {
+		mean, scale = sc.Mean, sc.Scale
+	} else {
+		mean, scale = make([]float64, s.Inputs), ones(s.Inputs)
+	}
+	enc, err := encode.Numbers(features, mean, scale)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrModel, err)
+	}
+	return enc, nil
+}
+
+// formatKeys holds every object key of the format, spelled exactly. Go's
+// decoder matches keys whatever their letter case, so a key in another case
+// would be read where other JSON readers ignore it: checkJSON refuses any
+// key not in this set.
+var formatKeys = func() map[string]bool {
+	keys := map[string]bool{}
+	var walk func(t reflect.Type)
+	walk = func(t reflect.Type) {
+		for t.Kind() == reflect.Pointer || t.Kind() == reflect.Slice {
+			t = t.Elem()
+		}
+		if t.Kind() != reflect.Struct {
+			return
+		}
+		for i := range t.NumField() {
+			f := t.Field(i)
+			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+			if name != "" && name != "-" {
+				keys[name] = true
+			}
+			walk(f.Type)
+		}
+	}
+	walk(reflect.TypeFor[fileModel]())
+	return keys
+}()
 
 // maxJSONDepth bounds the nesting of arrays and objects in a model file.
 // The format itself nests three deep; the bound stops a document of nested
@@ -349,10 +585,14 @@ func checkJSON(b []byte) error {
 			}
 		case string:
 			if top >= 0 && stack[top].obj && stack[top].key {
-				if stack[top].keys[t] {
-					return fmt.Errorf("%w: duplicate key %q near byte %d", ErrFormat, t, dec.InputOffset())
+				low := strings.ToLower(t)
+				if stack[top].keys[low] {
+					return fmt.Errorf("%w: duplicate key %q near byte %d (keys that differ only in letter case count as the same)", ErrFormat, t, dec.InputOffset())
 				}
-				stack[top].keys[t] = true
+				if !formatKeys[t] {
+					return fmt.Errorf("%w: unknown key %q near byte %d (keys are case-sensitive)", ErrFormat, t, dec.InputOffset())
+				}
+				stack[top].keys[low] = true
 				stack[top].key = false
 				continue
 			}

@@ -76,6 +76,16 @@ func check(s *spec.Network) error {
 	if s.Inputs < 1 {
 		return fmt.Errorf("%w: inputs %d, want ≥ 1", ErrSpec, s.Inputs)
 	}
+	if s.Types != nil && len(s.Types) != s.Inputs {
+		return fmt.Errorf("%w: %d input types for %d inputs", ErrSpec, len(s.Types), s.Inputs)
+	}
+	if !s.Resolved() {
+		for i, t := range s.Types {
+			if t.Units() == 0 {
+				return fmt.Errorf("%w: category input %q has no levels yet; they are learned when the encoder is fitted (encode.Fit, as train does), so compile the spec the encoder resolves", ErrSpec, s.Features[i])
+			}
+		}
+	}
 	for i, h := range s.Hidden {
 		if h.Units < 1 {
 			return fmt.Errorf("%w: hidden layer %d: units %d, want ≥ 1", ErrSpec, i, h.Units)

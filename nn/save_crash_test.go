@@ -31,7 +31,7 @@ func crashModel(t testing.TB, v int) *Model {
 	s.Init.Seed = uint64(10 + v)
 	net, err := Compile(s)
 	require.NoError(t, err)
-	m, err := NewModel(s, net.NewParams(), nil, nil, nil, nil)
+	m, err := NewModel(s, net.NewParams(), nil, nil)
 	require.NoError(t, err)
 	m.Summary.Iterations = v
 	return m

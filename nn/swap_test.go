@@ -37,7 +37,7 @@ func TestHotSwap(t *testing.T) {
 		for i := range p {
 			p[i] *= 3
 		}
-		m, err := NewModel(base.Spec, p, base.Mean, base.Scale, nil, nil)
+		m, err := NewModel(base.Spec, p, base.Encoder(), nil)
 		require.NoError(t, err)
 		var b bytes.Buffer
 		_, err = m.WriteTo(&b)

@@ -159,7 +159,7 @@ func TestFaultConstantFeature(t *testing.T) {
 	require.Len(t, res.Warnings, 1)
 	assert.Contains(t, res.Warnings[0], "constant")
 	assert.Contains(t, res.Warnings[0], "f1")
-	assert.Equal(t, 1.0, res.Model.Scale[1])
+	assert.Equal(t, 1.0, res.Model.Encoder().Inputs()[1].Scale)
 }
 
 // A class with a single example: training works; a stratified split or

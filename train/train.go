@@ -17,6 +17,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/score"
@@ -100,27 +101,52 @@ func MethodFor(o spec.Optimizer, rate float64, seed uint64) (optim.Method, error
 	return nil, fmt.Errorf("%w: unknown optimizer %v", ErrConfig, o)
 }
 
-// Prepare fits the scaler on set (unless noScale) and returns the scaled
-// copies of its features and of the holdout's, with the scaler's warnings.
-// A nil scaler means no scaling.
-func Prepare(set, holdout *data.Set, noScale bool) (x, hx *mat.Dense, sc *data.Scaler, warn []string) {
-	x = mat.DenseCopyOf(set.X)
+// Prepared is a training set made ready for a net: the encoder fitted on
+// the training rows only, the spec it resolves (category inputs with their
+// levels: the spec of the net to compile) and the encoded rows.
+type Prepared struct {
+	Encoder  *encode.Encoder
+	Spec     *spec.Network // resolved: Width() is Encoder.Width()
+	X        *mat.Dense    // the training rows, encoded
+	HoldoutX *mat.Dense    // the holdout rows, encoded with the same encoder; nil without a holdout
+	Warnings []string      // e.g. constant number columns
+}
+
+// Prepare fits the encoder of s on the rows of set (standardising numbers
+// unless noScale) and encodes set and holdout (which may be nil) with it.
+// Both sets are read with encode.ColumnsFor(s).
+func Prepare(s *spec.Network, set, holdout *data.Set, noScale bool) (*Prepared, error) {
+	enc, warn, err := encode.Fit(s, set, encode.Options{NoScale: noScale})
+	if err != nil {
+		return nil, fmt.Errorf("train: fitting the encoder on the training rows: %w", err)
+	}
+	p := &Prepared{Encoder: enc, Spec: enc.Resolve(s), Warnings: warn}
+	if p.X, err = enc.EncodeSet(set); err != nil {
+		return nil, fmt.Errorf("train: training rows: %w", err)
+	}
 	if holdout != nil {
-		hx = mat.DenseCopyOf(holdout.X)
+		if p.HoldoutX, err = enc.EncodeSet(holdout); err != nil {
+			return nil, fmt.Errorf("train: holdout rows: %w", err)
+		}
 	}
-	if noScale {
-		return x, hx, nil, nil
+	return p, nil
+}
+
+// CheckSpec reports whether s can be compiled into a net once its category
+// inputs have levels: everything but the widths that the training rows
+// decide is checked.
+func CheckSpec(s *spec.Network) error {
+	c := s
+	if !s.Resolved() {
+		c = s.Clone()
+		for i := range c.Types {
+			if c.Types[i].Units() == 0 {
+				c.Types[i].Levels = []string{"a", "b"}
+			}
+		}
 	}
-	var names []string // name the constant columns in warnings when known
-	if _, c := set.X.Dims(); len(set.Features) == c {
-		names = set.Features
-	}
-	sc, warn = data.FitScalerNamed(set.X, names)
-	sc.Transform(x, x)
-	if hx != nil {
-		sc.Transform(hx, hx)
-	}
-	return x, hx, sc, warn
+	_, err := nn.Compile(c)
+	return err
 }
 
 // Train fits the net that s describes to the rows of set.
@@ -133,8 +159,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if s == nil || set == nil {
 		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
 	}
-	net, err := nn.Compile(s)
-	if err != nil {
+	if err := CheckSpec(s); err != nil {
 		return nil, err
 	}
 	if err := CheckSet(s, set, "training"); err != nil {
@@ -156,13 +181,22 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	}
 	method := cfg.Method
 	if method == nil {
+		var err error
 		if method, err = MethodFor(s.Train.Optimizer, s.Train.Rate, seed); err != nil {
 			return nil, err
 		}
 	}
 	lim, batch := Defaults(s, cfg.Limits, cfg.Batch)
 
-	x, hx, sc, warn := Prepare(set, cfg.Holdout, cfg.NoScale)
+	prep, err := Prepare(s, set, cfg.Holdout, cfg.NoScale)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
+	}
+	x, hx, warn := prep.X, prep.HoldoutX, prep.Warnings
+	net, err := nn.Compile(prep.Spec)
+	if err != nil {
+		return nil, err
+	}
 	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers})
 	if err != nil {
 		return nil, fmt.Errorf("train: training rows: %w", err)
@@ -230,14 +264,11 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 			return nil, fmt.Errorf("train: param %d is %v after %s: refusing to build a model: %w", i, v, run.Status, runErr)
 		}
 	}
-	var mean, scale []float64
-	if sc != nil {
-		mean, scale = sc.Mean, sc.Scale
-	}
-	model, err := nn.NewModel(s, params, mean, scale, set.Classes, set.Features)
+	model, err := nn.NewModel(prep.Spec, params, prep.Encoder, set.Classes)
 	if err != nil {
 		return nil, err
 	}
+	model.Label = set.Label
 	model.Summary = nn.Summary{
 		Method:      methodName(method),
 		Iterations:  run.Iterations,

@@ -122,7 +122,10 @@ func TestWDBC(t *testing.T) {
 		require.False(t, math.IsNaN(v) || math.IsInf(v, 0))
 	}
 	assert.False(t, math.IsNaN(raw.Model.Summary.Cost))
-	assert.Nil(t, raw.Model.Mean)
+	for _, in := range raw.Model.Encoder().Inputs() {
+		assert.Equal(t, 0.0, in.Mean)
+		assert.Equal(t, 1.0, in.Scale)
+	}
 }
 
 // Same seed, data and settings: bit-identical params whatever GOMAXPROCS and

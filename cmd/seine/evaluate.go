@@ -8,8 +8,6 @@ import (
 	"math"
 	"strings"
 
-	"gonum.org/v1/gonum/mat"
-
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/internal/chart"
 	"github.com/seine-ml/seine/nn"
@@ -100,22 +98,25 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 }
 
 // dataForModel returns the CSV options that read a data file for model m:
-// its feature names (else its input count), classes and multi-label setting.
+// its inputs by name with their types and missing rules, its missing
+// tokens, classes and multi-label setting, and the label column the model
+// was trained with unless label names another.
 func dataForModel(m *nn.Model, label string, noLabel bool) data.CSVOptions {
-	opt := data.CSVOptions{Label: label, NoLabel: noLabel, Classes: m.Classes, Multilabel: m.Multilabel()}
-	if m.Features != nil {
-		opt.Features = m.Features
-	} else {
-		opt.Inputs = m.Inputs()
+	if label == "" {
+		label = m.Label
 	}
-	return opt
+	enc := m.Encoder()
+	return data.CSVOptions{Label: label, NoLabel: noLabel, Classes: m.Classes, Multilabel: m.Multilabel(),
+		Columns: enc.Columns(), MissingTokens: enc.MissingTokens()}
 }
 
 // evaluate scores m on the labelled rows of set.
 func evaluate(m *nn.Model, set *data.Set, threshold float64) (*score.Report, error) {
-	var p mat.Dense
-	m.ProbabilitiesBatch(&p, set.X)
-	return score.Evaluate(&p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Threshold: threshold})
+	p, err := m.ProbabilitiesSet(set)
+	if err != nil {
+		return nil, err
+	}
+	return score.Evaluate(p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Threshold: threshold})
 }
 
 func displayName(m *nn.Model) string {

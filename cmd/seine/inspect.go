@@ -6,8 +6,11 @@ import (
 	"io"
 	"math"
 	"runtime"
+	"strconv"
 	"strings"
+	"unicode"
 
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/spec"
 )
@@ -66,11 +69,25 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	if *rows > 0 {
 		train = *rows
 	}
-	net, err := nn.Compile(s)
+	shown := s
+	if !s.Resolved() {
+		// Levels to be learned from the training rows: count two per
+		// category to show the rest of the net.
+		shown = s.Clone()
+		for i := range shown.Types {
+			if shown.Types[i].Units() == 0 {
+				shown.Types[i].Levels = []string{"?1", "?2"}
+			}
+		}
+	}
+	net, err := nn.Compile(shown)
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
 	writeInspect(e.stdout, kind, path, s, net, train)
+	if m == nil && s.Types != nil {
+		writeSpecInputs(e.stdout, s)
+	}
 	if m != nil {
 		writeModelSummary(e.stdout, m)
 	}
@@ -138,17 +155,104 @@ func writeModelSummary(w io.Writer, m *nn.Model) {
 	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", sm.Method, sm.Iterations, sm.Evaluations, sm.Seconds, sm.Library)
 	fmt.Fprintf(w, "  stopped         %s\n", stopReason(sm.Status))
 	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)
-	if m.Mean != nil {
-		fmt.Fprintf(w, "  scaling         standardized on the training rows\n")
-	} else {
-		fmt.Fprintf(w, "  scaling         none\n")
-	}
+	writeEncoder(w, m.Encoder())
 	fmt.Fprintf(w, "  training rows   %d: cost %s, accuracy %s\n", sm.TrainRows, numText(sm.Cost, 1, "%.6g"), numText(sm.TrainAccuracy, 100, "%.2f%%"))
 	if sm.HoldoutRows > 0 {
 		fmt.Fprintf(w, "  holdout rows    %d: cross-entropy %s, accuracy %s\n", sm.HoldoutRows, numText(sm.HoldoutCost, 1, "%.6g"), numText(sm.HoldoutAccuracy, 100, "%.2f%%"))
 	} else {
 		fmt.Fprintf(w, "  holdout rows    none\n")
 	}
+}
+
+// writeSpecInputs lists a spec's typed inputs: type, levels and rules.
+func writeSpecInputs(w io.Writer, s *spec.Network) {
+	fmt.Fprintf(w, "\n  inputs\n")
+	for i, name := range s.Features {
+		t := s.Types[i]
+		switch t.Type {
+		case spec.CategoryInput:
+			lv := "levels learned from the training rows (counted as 2 units above)"
+			if t.Levels != nil {
+				lv = fmt.Sprintf("%d levels: %s", len(t.Levels), shortList(safeAll(t.Levels), 6))
+			}
+			fmt.Fprintf(w, "    %s  category, %s; missing: %s, unknown: %s\n", safe(name), lv, t.Missing, t.Unknown)
+		default:
+			fmt.Fprintf(w, "    %s  number; missing: %s\n", safe(name), missingText(t.Missing, t.Fill))
+		}
+	}
+}
+
+func missingText(r spec.MissingRule, fill float64) string {
+	if r == spec.MissingConstant {
+		return fmt.Sprintf("constant %v", fill)
+	}
+	return r.String()
+}
+
+// writeEncoder lists a model's raw inputs: type, levels or fill value and
+// scaling, and the input units each occupies.
+func writeEncoder(w io.Writer, enc *encode.Encoder) {
+	fmt.Fprintf(w, "  inputs          %d raw inputs → %d input units (missing tokens: %s)\n", enc.NumInputs(), enc.Width(), quoteList(enc.MissingTokens()))
+	for _, in := range enc.Inputs() {
+		units := fmt.Sprintf("unit %d", in.Offset)
+		if n := in.Units(); n > 1 {
+			units = fmt.Sprintf("units %d–%d", in.Offset, in.Offset+n-1)
+		}
+		switch in.Type {
+		case spec.CategoryInput:
+			extra := ""
+			switch in.Missing {
+			case spec.MissingLevel:
+				extra = ", missing: a unit of its own (the last)"
+			case spec.MissingMode:
+				extra = fmt.Sprintf(", missing: the mode %q", safe(in.Levels[int(in.Fill)]))
+			default:
+				extra = ", missing: refused"
+			}
+			fmt.Fprintf(w, "    %-14s  %s  category, %d levels (%s)%s, unknown: %s\n", safe(in.Name), units, len(in.Levels), shortList(safeAll(in.Levels), 6), extra, in.Unknown)
+		default:
+			fill := "missing: refused"
+			if in.Missing != spec.MissingRefuse {
+				fill = fmt.Sprintf("missing: %s = %.6g", in.Missing, in.Fill)
+			}
+			scale := "not scaled"
+			if in.Mean != 0 || in.Scale != 1 {
+				scale = fmt.Sprintf("(x − %.6g) / %.6g", in.Mean, in.Scale)
+			}
+			fmt.Fprintf(w, "    %-14s  %s  number, %s, %s\n", safe(in.Name), units, fill, scale)
+		}
+	}
+}
+
+// safe escapes the control characters of a text that came from a file, so
+// that printing it cannot move the cursor or retitle the terminal.
+func safe(t string) string {
+	var b strings.Builder
+	for _, r := range t {
+		if unicode.IsControl(r) || r == '\u2028' || r == '\u2029' {
+			q := strconv.QuoteRune(r)
+			b.WriteString(q[1 : len(q)-1])
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+func safeAll(l []string) []string {
+	out := make([]string, len(l))
+	for i, t := range l {
+		out[i] = safe(t)
+	}
+	return out
+}
+
+func quoteList(l []string) string {
+	q := make([]string, len(l))
+	for i, t := range l {
+		q[i] = strconv.Quote(t)
+	}
+	return strings.Join(q, ", ")
 }
 
 func numText(v, mul float64, format string) string {

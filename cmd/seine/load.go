@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/spec"
 )
@@ -56,12 +57,13 @@ func (w *wrapped) Error() string { return w.msg }
 func (w *wrapped) Unwrap() error { return w.err }
 
 // dataFor returns the CSV options that read a data file for the net that s
-// describes: the spec's classes, its feature names when it lists them (else
-// the count of inputs), and its multi-label setting.
+// describes: the spec's classes, its inputs by name with their types and
+// missing rules when it lists them (else the count of inputs), its missing
+// tokens and its multi-label setting.
 func dataFor(s *spec.Network, label string) data.CSVOptions {
-	opt := data.CSVOptions{Label: label, Classes: s.Output.Classes, Multilabel: s.Output.Multilabel}
-	if s.Features != nil {
-		opt.Features = s.Features
+	opt := data.CSVOptions{Label: label, Classes: s.Output.Classes, Multilabel: s.Output.Multilabel, MissingTokens: s.MissingTokens}
+	if cols := encode.ColumnsFor(s); cols != nil {
+		opt.Columns = cols
 	} else {
 		opt.Inputs = s.Inputs
 	}

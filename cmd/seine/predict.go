@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -21,10 +22,13 @@ least -threshold, joined with '|' ("" when none). With -probabilities a
 column "p_CLASS" per class follows, with the probability written so that it
 reads back to the same float64.
 
-The input needs the model's feature columns (picked by name when the model
-has feature names, else every column but -label); a label column, if
-present and named by -label (or by the model's feature names leaving it
-out), is ignored. -out is written in full and then renamed into place, so a
+The input needs the model's input columns, picked by name in any order
+(other columns are ignored), with the raw values the model was trained on:
+text for category inputs, numbers or missing cells (as the model's missing
+tokens, e.g. "" or "?") where the input's rule fills them. The label column
+the model was trained with (or -label) is ignored when present. -keep copies
+named columns (e.g. an id) in front of the predictions so that rows can be
+joined back. -out is written in full and then renamed into place, so a
 failure never leaves a partial file; without -out the CSV goes to standard
 output.
 `
@@ -35,7 +39,8 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	dataPath := fs.String("data", "", "CSV `FILE` with a header row; the label column may be absent")
 	out := fs.String("out", "", "write the predictions to `FILE` instead of standard output")
 	probs := fs.Bool("probabilities", false, "add one probability column per class")
-	label := fs.String("label", "", "name of a label `COLUMN` to ignore")
+	label := fs.String("label", "", "name of a label `COLUMN` to ignore (default: the model's)")
+	keep := fs.String("keep", "", "comma-separated `COLUMNS` copied from the input to the output, e.g. id,ts, to join rows back")
 	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class is predicted (default 0.5)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -63,13 +68,22 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if *threshold == 0 {
 		*threshold = 0.5
 	}
-	set, err := loadData(*dataPath, dataForModel(m, *label, true))
+	opt := dataForModel(m, *label, true)
+	if *keep != "" {
+		opt.Keep = strings.Split(*keep, ",")
+		for i, k := range opt.Keep {
+			opt.Keep[i] = strings.TrimSpace(k)
+		}
+	}
+	set, err := loadData(*dataPath, opt)
 	if err != nil {
 		return err
 	}
-	var p mat.Dense
-	m.ProbabilitiesBatch(&p, set.X)
-	write := func(w io.Writer) error { return writePredictions(w, m, &p, *probs, *threshold) }
+	p, err := m.ProbabilitiesSet(set)
+	if err != nil {
+		return fmt.Errorf("%s: %w", *dataPath, err)
+	}
+	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, *threshold) }
 	if *out == "" {
 		bw := bufio.NewWriter(e.stdout)
 		if err := write(bw); err != nil {
@@ -85,11 +99,12 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 }
 
 // writePredictions writes the CSV of predict for the probabilities p.
-func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, probs bool, threshold float64) error {
+func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kept [][]string, probs bool, threshold float64) error {
 	cw := csv.NewWriter(w)
-	head := []string{"class"}
+	head := append(slices.Clone(keep), "class")
+	nk := len(keep)
 	if m.Multilabel() {
-		head[0] = "classes"
+		head[nk] = "classes"
 	}
 	if probs {
 		for _, c := range m.Classes {
@@ -111,7 +126,7 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, probs bool, thresh
 					set = append(set, m.Classes[j])
 				}
 			}
-			rec[0] = strings.Join(set, "|")
+			rec[nk] = strings.Join(set, "|")
 		} else {
 			best := 0
 			for j := 1; j < k; j++ {
@@ -119,11 +134,14 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, probs bool, thresh
 					best = j
 				}
 			}
-			rec[0] = m.Classes[best]
+			rec[nk] = m.Classes[best]
+		}
+		if nk > 0 {
+			copy(rec, kept[i])
 		}
 		if probs {
 			for j, v := range row {
-				rec[1+j] = strconv.FormatFloat(v, 'g', -1, 64)
+				rec[nk+1+j] = strconv.FormatFloat(v, 'g', -1, 64)
 			}
 		}
 		if len(rec) == 1 && rec[0] == "" {

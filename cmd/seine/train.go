@@ -315,18 +315,18 @@ func netShape(s *spec.Network) string {
 // every `every` iterations. A failed save is reported once and the run goes
 // on: the final model matters more than the checkpoints.
 func checkpointer(path string, every int, s *spec.Network, set *data.Set, noScale bool, pr *progress, stderr io.Writer) func(optim.Step, []float64) bool {
-	_, _, sc, _ := train.Prepare(set, nil, noScale)
-	var mean, scale []float64
-	if sc != nil {
-		mean, scale = sc.Mean, sc.Scale
+	prep, perr := train.Prepare(s, set, nil, noScale)
+	failed := perr != nil // the run itself reports the problem
+	if perr == nil {
+		prep.X = nil // only the encoder and the resolved spec are needed
 	}
-	failed := false
 	return func(st optim.Step, x []float64) bool {
 		if st.Iter%every != 0 || failed {
 			return false
 		}
-		m, err := nn.NewModel(s, append([]float64(nil), x...), mean, scale, set.Classes, set.Features)
+		m, err := nn.NewModel(prep.Spec, append([]float64(nil), x...), prep.Encoder, set.Classes)
 		if err == nil {
+			m.Label = set.Label
 			m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
 				Status: "Checkpoint", Cost: st.Cost, TrainRows: set.Rows(), Seed: s.Init.Seed, Library: nn.Version,
 				TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}

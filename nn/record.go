@@ -1,0 +1,150 @@
+package nn
+
+import (
+	"gonum.org/v1/gonum/mat"
+
+	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
+)
+
+// Binding predicts from rows of raw values in a fixed column order, bound
+// once: the zero-allocation path for a service whose columns do not change.
+// Every value is checked against its input's rules; a bad one is an error
+// naming the field (*encode.FieldError), never a panic. A Binding is safe
+// for concurrent use.
+type Binding struct {
+	m   *Model
+	lay *encode.Layout
+}
+
+// Bind binds the column names of the caller's rows. Every input of the
+// model must be among names; other names are ignored.
+func (m *Model) Bind(names []string) (*Binding, error) {
+	lay, err := m.enc.Layout(names)
+	if err != nil {
+		return nil, err
+	}
+	return &Binding{m: m, lay: lay}, nil
+}
+
+// probs codes row and runs it through the net; the caller puts the
+// scratch back when err is nil.
+func (b *Binding) probs(row []encode.Value) (*rowScratch, error) {
+	m := b.m
+	sc := m.pool.Get().(*rowScratch)
+	if err := b.lay.Code(sc.coded, row); err != nil {
+		m.pool.Put(sc)
+		return nil, err
+	}
+	m.enc.Expand(sc.in, sc.coded)
+	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	if len(sc.out) == 1 && len(sc.probs) == 2 {
+		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
+	} else {
+		copy(sc.probs, sc.out)
+	}
+	return sc, nil
+}
+
+// Probabilities writes the class probabilities of row (one value per bound
+// column) into dst, allocated when nil or too short, and returns it. It
+// allocates nothing after warm-up when dst is large enough.
+func (b *Binding) Probabilities(dst []float64, row []encode.Value) ([]float64, error) {
+	sc, err := b.probs(row)
+	if err != nil {
+		return nil, err
+	}
+	k := len(b.m.Classes)
+	if cap(dst) < k {
+		dst = make([]float64, k)
+	}
+	dst = dst[:k]
+	copy(dst, sc.probs)
+	b.m.pool.Put(sc)
+	return dst, nil
+}
+
+// Predict returns the index in Classes of the most probable class of row.
+// It allocates nothing after warm-up.
+func (b *Binding) Predict(row []encode.Value) (int, error) {
+	sc, err := b.probs(row)
+	if err != nil {
+		return -1, err
+	}
+	k := argmax(sc.probs)
+	b.m.pool.Put(sc)
+	return k, nil
+}
+
+// ProbabilitiesRecord writes the class probabilities of the record rec (a
+// value per input name; see encode.Encoder.CodeRecord for the value types)
+// into dst, allocated when nil or too short, and returns it. A missing
+// field, a missing value or an unknown level that the input's rule refuses,
+// or a value of the wrong type is an *encode.FieldError.
+func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float64, error) {
+	sc := m.pool.Get().(*rowScratch)
+	defer m.pool.Put(sc)
+	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
+		return nil, err
+	}
+	k := len(m.Classes)
+	if cap(dst) < k {
+		dst = make([]float64, k)
+	}
+	dst = dst[:k]
+	m.enc.Expand(sc.in, sc.coded)
+	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	if len(sc.out) == 1 && k == 2 {
+		dst[0], dst[1] = 1-sc.out[0], sc.out[0]
+	} else {
+		copy(dst, sc.out)
+	}
+	return dst, nil
+}
+
+// PredictRecord returns the index in Classes of the most probable class of
+// the record rec (see ProbabilitiesRecord).
+func (m *Model) PredictRecord(rec map[string]any) (int, error) {
+	sc := m.pool.Get().(*rowScratch)
+	defer m.pool.Put(sc)
+	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
+		return -1, err
+	}
+	m.enc.Expand(sc.in, sc.coded)
+	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	if len(sc.out) == 1 && len(m.Classes) == 2 {
+		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
+	} else {
+		copy(sc.probs, sc.out)
+	}
+	return argmax(sc.probs), nil
+}
+
+// ProbabilitiesSet returns the class probabilities of every row of set, a
+// data set read with the model's columns (encode.Encoder.Columns), as a
+// rows × NumClasses matrix. Every value is checked by the encoder first; the
+// problems are reported with their lines (see encode.Encoder.EncodeSet).
+func (m *Model) ProbabilitiesSet(set *data.Set) (*mat.Dense, error) {
+	u, err := m.enc.EncodeSet(set)
+	if err != nil {
+		return nil, err
+	}
+	r, _ := u.Dims()
+	out := mat.NewDense(r, len(m.Classes), nil)
+	sc := m.batchPool.Get().(*batchScratch)
+	defer m.batchPool.Put(sc)
+	for start := 0; start < r; start += batchBlock {
+		n := min(batchBlock, r-start)
+		block := u.Slice(start, start+n, 0, m.net.Inputs()).(*mat.Dense)
+		o := m.net.Forward(sc.ws, m.Params, block)
+		for i := 0; i < n; i++ {
+			oi, pi := o.RawRowView(i), out.RawRowView(start+i)
+			if len(oi) == 1 && len(pi) == 2 {
+				pi[0], pi[1] = 1-oi[0], oi[0]
+			} else {
+				copy(pi, oi)
+			}
+		}
+	}
+	return out, nil
+}
