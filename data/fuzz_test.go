@@ -82,7 +82,7 @@ func FuzzCSV(f *testing.F) {
 				t.Fatalf("kept row %v for Keep %v", k, opt.Keep)
 			}
 		}
-		if (s.Label == "") != opt.NoLabel {
+		if (opt.NoLabel && s.Label != "") || (opt.Label != "" && !opt.NoLabel && s.Label != opt.Label) {
 			t.Fatalf("label %q with NoLabel %v", s.Label, opt.NoLabel)
 		}
 		for i := 1; i < len(s.Lines); i++ {
