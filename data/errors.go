@@ -7,8 +7,9 @@ import (
 	"strings"
 )
 
-// Sentinel errors. A *Error from ReadCSV wraps one of these, so callers test
-// the kind of problem with errors.Is and its position with errors.As.
+// Sentinel errors. A *Error from ReadCSV (alone, or each entry of an
+// *ErrorList) wraps one of these, so callers test the kind of problem with
+// errors.Is and its position with errors.As.
 var (
 	ErrEmpty           = errors.New("data: no data")                         // empty file, or a header and no rows
 	ErrNoHeader        = errors.New("data: missing header")                  // first row is all numbers
