@@ -141,7 +141,7 @@ const (
 	MissingRefuse   MissingRule = iota // a missing cell is an error (the default)
 	MissingMean                        // number: the mean of the training rows' values
 	MissingMedian                      // number: the median of the training rows' values
-	MissingMode                        // number or category: the most frequent training value (the smallest on ties)
+	MissingMode                        // number or category: the most frequent training value (on ties the smallest number, or the first level in level order)
 	MissingConstant                    // number: Input.Fill
 	MissingLevel                       // category: a unit of its own, after the levels' units
 )
