@@ -130,7 +130,11 @@
 // # Limits
 //
 // Limits caps the bytes read (default 1 MiB; a longer input fails with
-// ErrTooLarge after reading at most MaxBytes+1 bytes), the param count
+// ErrTooLarge after reading at most MaxBytes+1 bytes) and, with the same
+// bound, the spec as the parser sees it: each alias counts as a copy of
+// its anchored value, so a short spec cannot stand for one far longer than
+// its readers accept (an alias bomb is refused at the alias that passes
+// the limit, before anything is built from it). It also caps the param count
 // Σ_l (n_{l−1}+1)·n_l over the layer widths n_0 = inputs, …, n_L = output
 // units (default 50 000 000; computed without overflow; n_0 counts the
 // declared levels, and one unit for a category whose levels are still to

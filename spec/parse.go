@@ -37,6 +37,9 @@ func ParseLimits(r io.Reader, lim Limits) (*Network, error) {
 	if e != nil {
 		return nil, e
 	}
+	if e := checkExpansion(root, len(data), lim); e != nil {
+		return nil, e
+	}
 	p := &parser{lim: lim, locs: make(map[string]loc), bad: make(map[string]bool),
 		nulls: make(map[string]*yaml.Node), keys: make(map[string]loc),
 		quiet: make(map[string]bool), untyped: make(map[string]bool)}

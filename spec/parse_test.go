@@ -330,6 +330,8 @@ func TestParseBadFiles(t *testing.T) {
 		{"missing_constant_category.yaml", 5, 14, "inputs[0].missing", ErrConflict},
 		{"token_level.yaml", 5, 20, "inputs[0].levels[2]", ErrConflict},
 		{"class_weights_word.yaml", 6, 18, "train.class_weights", ErrUnknownName},
+		// 31 + 311 + … bytes per nested list: the third *l4 passes 1 MiB.
+		{"alias_bomb.yaml", 11, 20, "", ErrTooLarge},
 	}
 	for _, tt := range tests {
 		t.Run(tt.file, func(t *testing.T) {
