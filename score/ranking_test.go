@@ -249,7 +249,7 @@ func TestRankMissingClass(t *testing.T) {
 	assert.True(t, math.IsNaN(c.ROCAUC))
 	assert.True(t, math.IsNaN(c.AveragePrecision))
 	assert.Equal(t, 0.625, r.PerClass[0].ROCAUC)
-	assert.Equal(t, 0.625, r.PerClass[1].ROCAUC) // U counts the same pairs
+	assert.Equal(t, 0.625, r.PerClass[1].ROCAUC)                        // U counts the same pairs
 	assert.InDelta(t, 159.0/280, r.PerClass[1].AveragePrecision, 1e-15) // three terms, each within an ulp
 	assert.Equal(t, 0.625, r.MacroROCAUC)
 	assert.InDelta(t, (2.0/3+159.0/280)/2, r.MacroAveragePrecision, 1e-15)
