@@ -125,7 +125,7 @@ func sigmoid(u float64) float64 {
 //	Sigmoid: f = (1/m) Σᵢ Σₖ [ softplus(zᵢₖ/T) − yᵢₖ zᵢₖ/T ]
 //
 // both computed from the logits through log-sum-exp and softplus, so
-// nothing saturates. In β = 1/T, f is convex: f”(β) is the mean of
+// nothing saturates. In β = 1/T, f is convex: the second derivative f⁽²⁾(β) is the mean of
 // (Σₖ yᵢₖ)·Var_p(zᵢ) (softmax) or of Σₖ σ(1−σ)zᵢₖ² (sigmoid), both ≥ 0.
 // So the minimum is the root of the monotone f'(β), found by Newton's
 // method safeguarded by bisection on a bracket (the "rtsafe" scheme of

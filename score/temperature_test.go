@@ -153,7 +153,7 @@ func TestTemperatureOneIsIdentity(t *testing.T) {
 
 // TestTemperatureDerivatives checks the first and second derivatives in
 // β = 1/T against gonum's diff/fd central differences. The step is 1e-5
-// on values of order 1, so the truncation error (step² · f”') and the
+// on values of order 1, so the truncation error (step² times the third derivative) and the
 // rounding error (ε/step) are both below 1e-8; the tolerance is 1e-6.
 func TestTemperatureDerivatives(t *testing.T) {
 	for _, out := range []Output{Softmax, Sigmoid} {
