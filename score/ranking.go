@@ -86,6 +86,10 @@ func ROCCurve(scores []float64, positive []bool) (ROC, error) {
 	if err != nil {
 		return ROC{}, err
 	}
+	return st.roc(), nil
+}
+
+func (st steps) roc() ROC {
 	n := len(st.thr) + 1
 	c := ROC{Threshold: make([]float64, n), FPR: make([]float64, n), TPR: make([]float64, n)}
 	c.Threshold[0] = math.Inf(1)
@@ -95,7 +99,7 @@ func ROCCurve(scores []float64, positive []bool) (ROC, error) {
 		c.FPR[j+1] = rate(st.fp[j], st.neg)
 		c.TPR[j+1] = rate(st.tp[j], st.pos)
 	}
-	return c, nil
+	return c
 }
 
 // PRCurve returns the precision–recall curve of scores against the labels
@@ -106,6 +110,10 @@ func PRCurve(scores []float64, positive []bool) (PR, error) {
 	if err != nil {
 		return PR{}, err
 	}
+	return st.pr(), nil
+}
+
+func (st steps) pr() PR {
 	n := len(st.thr)
 	c := PR{Threshold: make([]float64, n), Precision: make([]float64, n), Recall: make([]float64, n)}
 	for j := range st.thr {
@@ -113,7 +121,7 @@ func PRCurve(scores []float64, positive []bool) (PR, error) {
 		c.Precision[j] = float64(st.tp[j]) / float64(st.tp[j]+st.fp[j])
 		c.Recall[j] = rate(st.tp[j], st.pos)
 	}
-	return c, nil
+	return c
 }
 
 // rate is a/b, NaN when b is 0.
@@ -251,8 +259,7 @@ func Rank(p, y mat.Matrix, classes []string) (*Rankings, error) {
 		}
 		rk := Ranking{Name: classes[j], Positives: st.pos, Negatives: st.neg,
 			ROCAUC: math.NaN(), AveragePrecision: math.NaN()}
-		rk.ROC, _ = ROCCurve(scores, pos)
-		rk.PR, _ = PRCurve(scores, pos)
+		rk.ROC, rk.PR = st.roc(), st.pr()
 		if st.pos > 0 && st.neg > 0 {
 			rk.ROCAUC = st.area()
 			rk.AveragePrecision = st.averagePrecision()
