@@ -21,7 +21,8 @@
 // as 0 (common practice; the class then also counts as 0 in the macro
 // average). The definitions are those of van Rijsbergen (1979) for F1 and
 // of the usual confusion-matrix accounting (rows = true class, columns =
-// predicted class).//
+// predicted class).
+//
 // # Ranking (one-vs-rest)
 //
 // ROCCurve, PRCurve, ROCArea and AveragePrecision take one score per row
