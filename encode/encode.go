@@ -222,16 +222,23 @@ func (e *Encoder) HasCategories() bool {
 	return false
 }
 
-// Equal reports whether e and o encode every value the same way.
+// Equal reports whether e and o encode every value the same way: the same
+// inputs, levels, rules and missing tokens, and the same fill values and
+// scaling bit for bit where they are used.
 func (e *Encoder) Equal(o *Encoder) bool {
 	if len(e.inputs) != len(o.inputs) || !slices.Equal(e.tokens, o.tokens) {
 		return false
 	}
 	for i := range e.inputs {
 		a, b := &e.inputs[i], &o.inputs[i]
-		if a.Name != b.Name || a.Type != b.Type || !slices.Equal(a.Levels, b.Levels) || a.Missing != b.Missing ||
-			a.Unknown != b.Unknown || math.Float64bits(a.Fill) != math.Float64bits(b.Fill) ||
-			math.Float64bits(a.Mean) != math.Float64bits(b.Mean) || math.Float64bits(a.Scale) != math.Float64bits(b.Scale) {
+		if a.Name != b.Name || a.Type != b.Type || !slices.Equal(a.Levels, b.Levels) || a.Missing != b.Missing || a.Unknown != b.Unknown {
+			return false
+		}
+		same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) || (x != x && y != y) }
+		switch {
+		case a.Type == spec.NumberInput && !(same(a.Mean, b.Mean) && same(a.Scale, b.Scale) && (a.Missing == spec.MissingRefuse || same(a.Fill, b.Fill))):
+			return false
+		case a.Type == spec.CategoryInput && a.Missing == spec.MissingMode && a.Fill != b.Fill:
 			return false
 		}
 	}

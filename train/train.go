@@ -136,16 +136,7 @@ func Prepare(s *spec.Network, set, holdout *data.Set, noScale bool) (*Prepared, 
 // inputs have levels: everything but the widths that the training rows
 // decide is checked.
 func CheckSpec(s *spec.Network) error {
-	c := s
-	if !s.Resolved() {
-		c = s.Clone()
-		for i := range c.Types {
-			if c.Types[i].Units() == 0 {
-				c.Types[i].Levels = []string{"a", "b"}
-			}
-		}
-	}
-	_, err := nn.Compile(c)
+	_, err := nn.Compile(encode.Placeholder(s))
 	return err
 }
 
