@@ -307,7 +307,7 @@ func (e *Encoder) codeText(i int, t string) (float64, error) {
 	if in.Type == spec.NumberInput {
 		v, err := strconv.ParseFloat(t, 64)
 		if err != nil {
-			return 0, fmt.Errorf("%w: %q is not a number; declare `type: category` for a text input", ErrType, cut(t))
+			return 0, describe(ErrType, "%q is not a number; declare `type: category` for a text input", cut(t))
 		}
 		return e.codeNumber(i, v)
 	}
@@ -317,17 +317,17 @@ func (e *Encoder) codeText(i int, t string) (float64, error) {
 	if in.Unknown == spec.UnknownIgnore {
 		return -1, nil
 	}
-	return 0, fmt.Errorf("%w: %q is not one of the levels seen in training (%s); set `unknown: ignore` to accept it", ErrUnknownLevel, cut(t), levelList(in.Levels))
+	return 0, describe(ErrUnknownLevel, "%q is not one of the levels seen in training (%s); set `unknown: ignore` in the spec to accept unknown levels", cut(t), levelList(in.Levels))
 }
 
 // codeNumber codes the number v of input i.
 func (e *Encoder) codeNumber(i int, v float64) (float64, error) {
 	in := &e.inputs[i]
 	if in.Type == spec.CategoryInput {
-		return 0, fmt.Errorf("%w: got the number %v, want a level of the category (text)", ErrType, v)
+		return 0, describe(ErrType, "got the number %v, want one of the category's levels as text", v)
 	}
 	if !finite(v) {
-		return 0, fmt.Errorf("%w: %v", ErrNotFinite, v)
+		return 0, describe(ErrNotFinite, "%v is not a finite number", v)
 	}
 	return v, nil
 }
@@ -335,7 +335,7 @@ func (e *Encoder) codeNumber(i int, v float64) (float64, error) {
 // codeMissing codes a missing value of input i.
 func (e *Encoder) codeMissing(i int) (float64, error) {
 	if e.inputs[i].Missing == spec.MissingRefuse {
-		return 0, fmt.Errorf("%w: the input's missing rule is refuse; set `missing:` in the spec to fill it", ErrMissingValue)
+		return 0, describe(ErrMissingValue, "missing value; the input's missing rule is refuse: set `missing:` in the spec to fill it")
 	}
 	return math.NaN(), nil
 }

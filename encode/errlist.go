@@ -1,6 +1,8 @@
 package encode
 
 import (
+	"fmt"
+
 	"github.com/seine-ml/seine/data"
 )
 
@@ -47,4 +49,27 @@ func (l *errorList) err() error {
 		l.list.More = append(l.list.More, data.ColumnCount{Column: name, N: l.more[name]})
 	}
 	return &l.list
+}
+
+// detail is a problem described in words that unwraps to its sentinels, so
+// that a message says what was found and what was expected, without the
+// sentinels' own text, while errors.Is still matches them.
+type detail struct {
+	msg   string
+	kinds []error
+}
+
+func (d *detail) Error() string   { return d.msg }
+func (d *detail) Unwrap() []error { return d.kinds }
+
+// describe returns an error whose message is the formatted text and which
+// unwraps to kind and to any error among args (for %v of a cause).
+func describe(kind error, format string, args ...any) error {
+	d := &detail{msg: fmt.Sprintf(format, args...), kinds: []error{kind}}
+	for _, a := range args {
+		if e, ok := a.(error); ok {
+			d.kinds = append(d.kinds, e)
+		}
+	}
+	return d
 }

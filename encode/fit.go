@@ -113,11 +113,11 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 		}
 		if t.Type == spec.CategoryInput {
 			if err := fitCategory(&in, t, col, texts); err != nil {
-				return nil, nil, fmt.Errorf("%w: input %q: %w", ErrFit, in.Name, err)
+				return nil, nil, describe(ErrFit, "input %q: %v", in.Name, err)
 			}
 		} else {
 			if err := fitNumber(&in, t, col); err != nil {
-				return nil, nil, fmt.Errorf("%w: input %q: %w", ErrFit, in.Name, err)
+				return nil, nil, describe(ErrFit, "input %q: %v", in.Name, err)
 			}
 			numCols = append(numCols, j)
 		}
@@ -164,7 +164,7 @@ func fitNumber(in *Input, t spec.Input, col []float64) error {
 	switch t.Missing {
 	case spec.MissingRefuse:
 		if len(vals) < len(col) {
-			return fmt.Errorf("%w in the training rows and the input's missing rule is refuse", ErrMissingValue)
+			return describe(ErrMissingValue, "a value is missing in the training rows and the input's missing rule is refuse")
 		}
 	case spec.MissingMean:
 		in.Fill = mean(vals)
@@ -242,7 +242,7 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 		count[int(v)]++
 	}
 	if t.Missing == spec.MissingRefuse && missing > 0 {
-		return fmt.Errorf("%w in the training rows and the input's missing rule is refuse", ErrMissingValue)
+		return describe(ErrMissingValue, "a value is missing in the training rows and the input's missing rule is refuse")
 	}
 	if t.Levels != nil {
 		in.Levels = slices.Clone(t.Levels)
@@ -261,7 +261,7 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 			if len(in.Levels) == 1 {
 				seen = strconv.Quote(in.Levels[0])
 			}
-			return fmt.Errorf("%w: the training rows hold one level only (%s); a category with one level carries no information", ErrLevels, seen)
+			return describe(ErrLevels, "the training rows hold one level only (%s); a category needs at least two levels to carry information", seen)
 		}
 	}
 	if t.Missing == spec.MissingMode {
