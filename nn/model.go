@@ -63,6 +63,28 @@ type Summary struct {
 	HoldoutAccuracy float64 `json:"holdout_accuracy"` //
 	Seed            uint64  `json:"seed"`             // initialisation seed
 	Library         string  `json:"library"`          // seine version that trained it
+	// ClassWeights are the per-class factors the cross-entropy was
+	// weighted by (spec train.class_weights), in class order; nil when
+	// unweighted.
+	ClassWeights []float64 `json:"class_weights,omitempty"`
+	// Operating holds, for each class with an operating threshold
+	// (Decision), the holdout figures at that threshold.
+	Operating []OperatingPoint `json:"operating,omitempty"`
+	// HoldoutECE and HoldoutECEBefore are the holdout expected calibration
+	// error with and without the model's temperature; NaN when not
+	// measured.
+	HoldoutECE       float64 `json:"holdout_ece"`
+	HoldoutECEBefore float64 `json:"holdout_ece_before"`
+}
+
+// OperatingPoint is a class's operating threshold with the holdout
+// figures there.
+type OperatingPoint struct {
+	Class     string  `json:"class"`
+	Threshold float64 `json:"threshold"`
+	Precision float64 `json:"precision"`
+	Recall    float64 `json:"recall"`
+	F1        float64 `json:"f1"`
 }
 
 // Version is the library version written into model summaries.

@@ -309,19 +309,23 @@ func parseMissing(w string) (spec.MissingRule, bool) {
 
 // fileSummary is Summary with NaN written as null.
 type fileSummary struct {
-	Method          string   `json:"method"`
-	Iterations      int      `json:"iterations"`
-	Evaluations     float64  `json:"evaluations"`
-	Seconds         float64  `json:"seconds"`
-	Status          string   `json:"status"`
-	Cost            *float64 `json:"cost"`
-	TrainRows       int      `json:"train_rows"`
-	TrainAccuracy   *float64 `json:"train_accuracy"`
-	HoldoutRows     int      `json:"holdout_rows"`
-	HoldoutCost     *float64 `json:"holdout_cost"`
-	HoldoutAccuracy *float64 `json:"holdout_accuracy"`
-	Seed            uint64   `json:"seed"`
-	Library         string   `json:"library"`
+	Method           string           `json:"method"`
+	Iterations       int              `json:"iterations"`
+	Evaluations      float64          `json:"evaluations"`
+	Seconds          float64          `json:"seconds"`
+	Status           string           `json:"status"`
+	Cost             *float64         `json:"cost"`
+	TrainRows        int              `json:"train_rows"`
+	TrainAccuracy    *float64         `json:"train_accuracy"`
+	HoldoutRows      int              `json:"holdout_rows"`
+	HoldoutCost      *float64         `json:"holdout_cost"`
+	HoldoutAccuracy  *float64         `json:"holdout_accuracy"`
+	Seed             uint64           `json:"seed"`
+	Library          string           `json:"library"`
+	ClassWeights     []float64        `json:"class_weights,omitempty"`
+	Operating        []OperatingPoint `json:"operating,omitempty"`
+	HoldoutECE       *float64         `json:"holdout_ece,omitempty"`
+	HoldoutECEBefore *float64         `json:"holdout_ece_before,omitempty"`
 }
 
 func nullable(v float64) *float64 {
@@ -370,6 +374,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
 		HoldoutRows: s.HoldoutRows, HoldoutCost: nullable(s.HoldoutCost), HoldoutAccuracy: nullable(s.HoldoutAccuracy),
 		Seed: s.Seed, Library: s.Library,
+		ClassWeights: s.ClassWeights, Operating: s.Operating, HoldoutECE: nullable(s.HoldoutECE), HoldoutECEBefore: nullable(s.HoldoutECEBefore),
 	}
 	if !finite(f.Summary.Evaluations) {
 		f.Summary.Evaluations = 0
@@ -484,6 +489,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
 		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),
 		Seed: fs.Seed, Library: fs.Library,
+		ClassWeights: fs.ClassWeights, Operating: fs.Operating, HoldoutECE: fromNullable(fs.HoldoutECE), HoldoutECEBefore: fromNullable(fs.HoldoutECEBefore),
 	}
 	if err := m.init(); err != nil {
 		return nil, err
