@@ -73,7 +73,7 @@ type trainFlags struct {
 	calibrate              bool
 	thresholdRule          string
 	rule                   *train.ThresholdRule // parsed from thresholdRule
-	set                    map[string]bool // flags given on the command line
+	set                    map[string]bool      // flags given on the command line
 }
 
 func runTrain(ctx context.Context, e *env, args []string) error {
