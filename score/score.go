@@ -49,6 +49,9 @@ type Report struct {
 	// above, for plots; they are not written as JSON.
 	Ranking     *Rankings    `json:"-"`
 	Reliability *Reliability `json:"-"`
+	// Warnings say where these figures mislead (see Warnings); the caller
+	// fills them in.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 // Options set how predictions are turned into decisions.

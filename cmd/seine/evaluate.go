@@ -121,6 +121,10 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return prefixLines(*dataPath, err)
 	}
+	rep.Warnings = score.Warnings(rep, baseName(*dataPath))
+	for _, w := range rep.Warnings {
+		fmt.Fprintf(e.stderr, "seine evaluate: warning: %s\n", w)
+	}
 	if *plot != "" {
 		title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
 		err := writeAtomic(*plot, func(w io.Writer) error {
