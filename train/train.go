@@ -296,7 +296,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 			return nil, err
 		}
 	}
-	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, hx, run, lim)...)
+	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, hx, run)...)
 	res.Model = model
 	if runErr != nil {
 		return res, fmt.Errorf("train: %w", runErr)

@@ -2,7 +2,6 @@ package train
 
 import (
 	"fmt"
-	"math"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -13,10 +12,12 @@ import (
 	"github.com/seine-ml/seine/spec"
 )
 
-// gradLarge is the factor over the gradient tolerance above which a run
-// that reached its iteration limit is said to have stopped far from a
-// minimum.
-const gradLarge = 100
+// gradLarge is the share of its first gradient norm above which the
+// gradient of a run that reached its iteration limit is said to be still
+// large: it fell less than a hundredfold, so the run stopped far from a
+// minimum (common practice; a tighter test would warn on every run that
+// stops at a modest limit on purpose).
+const gradLarge = 1e-2
 
 // fitWarnings says, in words, where a finished run or its data mislead: a
 // class with no or fewer than score.MinClassRows training rows, holdout
@@ -24,7 +25,7 @@ const gradLarge = 100
 // limit reached with the gradient still large, and the holdout figures'
 // own warnings (score.Warnings, which also name a class the holdout
 // lacks).
-func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Result, lim optim.Limits) []string {
+func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Result) []string {
 	var out []string
 	for k, n := range set.Counts() {
 		switch {
@@ -37,12 +38,10 @@ func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Resu
 	if p, r := len(m.Params), set.Rows(); p > r {
 		out = append(out, fmt.Sprintf("the net has %d params for %d training rows: expect it to fit noise; raise the penalty (l2), shrink the net or add rows", p, r))
 	}
-	tol := lim.GradTol
-	if tol == 0 {
-		tol = 1e-6 // optim's default
-	}
-	if run.Status == optim.IterationLimit && run.GradNorm > gradLarge*tol*math.Max(1, math.Abs(run.Cost)) {
-		out = append(out, fmt.Sprintf("stopped at the iteration limit (%d) with the gradient norm still %.3g, far above the tolerance %g: raise -iterations or the spec's train.iterations", run.Iterations, run.GradNorm, tol))
+	if run.Status == optim.IterationLimit && len(run.Trace) > 0 {
+		if g0 := run.Trace[0].GradNorm; run.GradNorm > gradLarge*g0 {
+			out = append(out, fmt.Sprintf("stopped at the iteration limit (%d) with the gradient norm still %.3g, %.2g%% of where it started: the run is far from a minimum; raise -iterations or the spec's train.iterations", run.Iterations, run.GradNorm, 100*run.GradNorm/g0))
+		}
 	}
 	if hold == nil {
 		return out
