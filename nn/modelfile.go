@@ -3,7 +3,6 @@ package nn
 import (
 	"bytes"
 	"crypto/sha256"
-	"encoding/base64"
 	"encoding/binary"
 	"encoding/hex"
 	"encoding/json"
@@ -128,7 +127,7 @@ type fileScaler struct {
 type fileParams struct {
 	Count    int    `json:"count"`
 	Encoding string `json:"encoding"`
-	Data     string `json:"data"`
+	Data     []byte `json:"data"` // base64 in the file (encoding/json's form of []byte)
 }
 
 // hasher writes the digest's fixed binary form.
@@ -361,7 +360,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	f := fileModel{
 		Format: FormatName, Version: FormatVersion, Spec: y.String(),
 		Classes: m.Classes, Label: &label, Encoder: toFileEncoder(m.enc),
-		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: base64.StdEncoding.EncodeToString(raw)},
+		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: raw},
 	}
 	if !m.Decision.IsZero() {
 		d := m.Decision
@@ -405,22 +404,21 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if maxBytes <= 0 {
 		maxBytes = DefaultMaxModelBytes
 	}
-	b, err := io.ReadAll(io.LimitReader(r, maxBytes+1))
+	b, err := readBounded(r, maxBytes)
 	if err != nil {
-		return nil, fmt.Errorf("nn: reading model: %w", err)
-	}
-	if int64(len(b)) > maxBytes {
-		return nil, fmt.Errorf("%w: more than %d bytes", ErrTooLarge, maxBytes)
+		return nil, err
 	}
 	if err := checkJSON(b); err != nil {
 		return nil, err
 	}
 	var f fileModel
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&f); err != nil {
+	// checkJSON has refused every key the format does not spell exactly, so
+	// Unmarshal (which, unlike a Decoder, reads b in place) sees only known
+	// fields.
+	if err := json.Unmarshal(b, &f); err != nil {
 		return nil, fmt.Errorf("%w: %s", ErrFormat, jsonErr(b, err))
 	}
+	b = nil // the decoded parts are all that is needed from here on
 	if f.Format != FormatName {
 		return nil, fmt.Errorf("%w: format is %q, want %q", ErrFormat, f.Format, FormatName)
 	}
@@ -431,10 +429,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if p.Encoding != paramEncoding {
 		return nil, fmt.Errorf("%w: params encoding %q, want %q", ErrFormat, p.Encoding, paramEncoding)
 	}
-	raw, err := base64.StdEncoding.DecodeString(p.Data)
-	if err != nil {
-		return nil, fmt.Errorf("%w: params data: %w", ErrFormat, err)
-	}
+	raw := p.Data // base64-decoded by Unmarshal
 	var enc *encode.Encoder
 	label := ""
 	switch f.Version {
@@ -557,80 +552,191 @@ var formatKeys = func() map[string]bool {
 // brackets (a "JSON bomb") before the scan's stack grows with the file.
 const maxJSONDepth = 32
 
-// checkJSON scans the document once for syntax and duplicate object keys,
-// reporting the byte offset of a problem. It refuses nesting deeper than
-// maxJSONDepth.
+// readChunk is the size of the pieces a stream is read in.
+const readChunk = 4 << 20
+
+// readBounded reads all of r, refusing more than max bytes, at a memory
+// cost of at most max plus one piece for a refused stream and twice the
+// size for an accepted one (pieces, then one buffer). A stream that does
+// not start like a JSON object (after white space) is refused at its first
+// byte, so reading /dev/zero or random bytes costs nothing.
+func readBounded(r io.Reader, max int64) ([]byte, error) {
+	var pieces [][]byte
+	var n int64
+	started := false
+	for {
+		piece := make([]byte, min(int64(readChunk), max+1-n))
+		k, err := io.ReadFull(r, piece)
+		piece = piece[:k]
+		if !started {
+			if i := bytes.IndexFunc(piece, func(c rune) bool { return !isSpace(byte(c)) }); i >= 0 {
+				if piece[i] != '{' {
+					return nil, fmt.Errorf("%w: line %d: the document is not a JSON object (byte %d is %q)", ErrFormat, 1+bytes.Count(piece[:i], []byte{'\n'}), n+int64(i), piece[i])
+				}
+				started = true
+			}
+		}
+		pieces = append(pieces, piece)
+		n += int64(k)
+		if n > max {
+			return nil, fmt.Errorf("%w: more than %d bytes", ErrTooLarge, max)
+		}
+		if err == io.EOF || err == io.ErrUnexpectedEOF {
+			break
+		}
+		if err != nil {
+			return nil, fmt.Errorf("nn: reading model: %w", err)
+		}
+	}
+	if len(pieces) == 1 {
+		return pieces[0], nil
+	}
+	b := make([]byte, 0, n)
+	for i, p := range pieces {
+		b = append(b, p...)
+		pieces[i] = nil
+	}
+	return b, nil
+}
+
+func isSpace(c byte) bool { return c == ' ' || c == '\t' || c == '\n' || c == '\r' }
+
+// checkJSON scans the document once for its structure: one object, keys
+// spelled exactly as the format spells them and unique within their object
+// (also when they differ only in letter case), nesting no deeper than
+// maxJSONDepth, nothing after the end. It reports the byte offset of a
+// problem. It allocates only for keys and the nesting stack, never for a
+// string value (the params' base64 may be most of the file); the full
+// syntax is checked when the document is decoded.
 func checkJSON(b []byte) error {
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.UseNumber()
 	type frame struct {
 		obj  bool
 		keys map[string]bool
-		key  bool // next string token is a key
 	}
 	var stack []frame
-	first := true
+	i := 0
+	skip := func() {
+		for i < len(b) && isSpace(b[i]) {
+			i++
+		}
+	}
+	// str returns the end of the string literal that starts at b[i] == '"'.
+	str := func() (int, error) {
+		for j := i + 1; j < len(b); j++ {
+			switch b[j] {
+			case '\\':
+				j++
+			case '"':
+				return j + 1, nil
+			}
+		}
+		return 0, fmt.Errorf("%w: unexpected end of file in a string that starts at byte %d", ErrFormat, i)
+	}
+	skip()
+	if i == len(b) {
+		return fmt.Errorf("%w: unexpected end of file", ErrFormat)
+	}
+	if b[i] != '{' {
+		return fmt.Errorf("%w: the document is not a JSON object", ErrFormat)
+	}
 	for {
-		tok, err := dec.Token()
-		if err == io.EOF {
-			if first || len(stack) != 0 {
-				return fmt.Errorf("%w: unexpected end of file", ErrFormat)
+		skip()
+		if i == len(b) {
+			return fmt.Errorf("%w: unexpected end of file", ErrFormat)
+		}
+		c := b[i]
+		switch {
+		case c == '{' || c == '[':
+			if len(stack) >= maxJSONDepth {
+				return fmt.Errorf("%w: nesting deeper than %d levels near byte %d", ErrFormat, maxJSONDepth, i)
+			}
+			stack = append(stack, frame{obj: c == '{'})
+			i++
+			if c == '{' {
+				stack[len(stack)-1].keys = map[string]bool{}
+				if err := checkKey(b, &i, &stack[len(stack)-1].keys, str, skip); err != nil {
+					return err
+				}
+			}
+			continue
+		case c == '}' || c == ']':
+			if len(stack) == 0 || stack[len(stack)-1].obj != (c == '}') {
+				return fmt.Errorf("%w: unexpected %q at byte %d", ErrFormat, c, i)
+			}
+			stack = stack[:len(stack)-1]
+			i++
+		case c == '"':
+			end, err := str()
+			if err != nil {
+				return err
+			}
+			i = end
+		default: // a number, true, false or null: up to the next delimiter
+			start := i
+			for i < len(b) && !isSpace(b[i]) && b[i] != ',' && b[i] != '}' && b[i] != ']' && b[i] != ':' {
+				i++
+			}
+			if i == start {
+				return fmt.Errorf("%w: unexpected %q at byte %d", ErrFormat, c, i)
+			}
+		}
+		// After a value: the end of the document, a comma, or a closing
+		// bracket (read on the next turn).
+		if len(stack) == 0 {
+			skip()
+			if i != len(b) {
+				return fmt.Errorf("%w: data after the end of the document at byte %d", ErrFormat, i)
 			}
 			return nil
 		}
-		if err != nil {
-			return fmt.Errorf("%w: %s", ErrFormat, jsonErr(b, err))
-		}
-		if first {
-			if d, ok := tok.(json.Delim); !ok || d != '{' {
-				return fmt.Errorf("%w: the document is not a JSON object", ErrFormat)
-			}
-			first = false
-		} else if len(stack) == 0 {
-			return fmt.Errorf("%w: data after the end of the document", ErrFormat)
-		}
-		top := len(stack) - 1
-		switch t := tok.(type) {
-		case json.Delim:
-			if (t == '{' || t == '[') && len(stack) >= maxJSONDepth {
-				return fmt.Errorf("%w: nesting deeper than %d levels near byte %d", ErrFormat, maxJSONDepth, dec.InputOffset())
-			}
-			switch t {
-			case '{':
-				if top >= 0 && stack[top].obj {
-					stack[top].key = true
+		skip()
+		if i < len(b) && b[i] == ',' {
+			i++
+			if top := &stack[len(stack)-1]; top.obj {
+				if err := checkKey(b, &i, &top.keys, str, skip); err != nil {
+					return err
 				}
-				stack = append(stack, frame{obj: true, keys: map[string]bool{}, key: true})
-			case '[':
-				if top >= 0 && stack[top].obj {
-					stack[top].key = true
-				}
-				stack = append(stack, frame{})
-			default:
-				stack = stack[:top]
-			}
-		case string:
-			if top >= 0 && stack[top].obj && stack[top].key {
-				low := strings.ToLower(t)
-				if stack[top].keys[low] {
-					return fmt.Errorf("%w: duplicate key %q near byte %d (keys that differ only in letter case count as the same)", ErrFormat, t, dec.InputOffset())
-				}
-				if !formatKeys[t] {
-					return fmt.Errorf("%w: unknown key %q near byte %d (keys are case-sensitive)", ErrFormat, t, dec.InputOffset())
-				}
-				stack[top].keys[low] = true
-				stack[top].key = false
-				continue
-			}
-			if top >= 0 && stack[top].obj {
-				stack[top].key = true
-			}
-		default:
-			if top >= 0 && stack[top].obj {
-				stack[top].key = true
 			}
 		}
 	}
+}
+
+// checkKey reads an object's next key and its colon at b[*i], if the object
+// does not end there, and records it in keys: refused when the format does
+// not spell it so, or when a key differing at most in letter case came
+// before.
+func checkKey(b []byte, i *int, keys *map[string]bool, str func() (int, error), skip func()) error {
+	skip()
+	if *i < len(b) && b[*i] == '}' {
+		return nil
+	}
+	if *i >= len(b) || b[*i] != '"' {
+		return fmt.Errorf("%w: want a key at byte %d", ErrFormat, *i)
+	}
+	end, err := str()
+	if err != nil {
+		return err
+	}
+	var key string
+	if err := json.Unmarshal(b[*i:end], &key); err != nil {
+		return fmt.Errorf("%w: key at byte %d: %v", ErrFormat, *i, err)
+	}
+	at := *i
+	*i = end
+	low := strings.ToLower(key)
+	if (*keys)[low] {
+		return fmt.Errorf("%w: duplicate key %q near byte %d (keys that differ only in letter case count as the same)", ErrFormat, key, at)
+	}
+	if !formatKeys[key] {
+		return fmt.Errorf("%w: unknown key %q near byte %d (keys are case-sensitive)", ErrFormat, key, at)
+	}
+	(*keys)[low] = true
+	skip()
+	if *i >= len(b) || b[*i] != ':' {
+		return fmt.Errorf("%w: want ':' after key %q at byte %d", ErrFormat, key, *i)
+	}
+	*i++
+	return nil
 }
 
 // jsonErr adds the line and column to a JSON decoding error.
