@@ -14,11 +14,11 @@ import (
 	"io/fs"
 	"math"
 	"os"
-	"path/filepath"
 	"reflect"
 	"strings"
 
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/atomicfile"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -653,38 +653,27 @@ func jsonErr(b []byte, err error) string {
 }
 
 // Save writes m to the file at path without ever leaving a half-written or
-// lost model: it writes a temporary file in the same folder, syncs it, and
-// renames it over path. On any failure the old file at path is untouched.
-func (m *Model) Save(path string) (err error) {
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+// lost model (internal/atomicfile): it writes a temporary file in the
+// target's folder, syncs it, and renames it over the target; a path that is
+// a symbolic link is written through to the file it names, and an existing
+// file keeps its permission bits. Before anything is written it reads the
+// bytes back with the loader's own limits, so Save never produces a file
+// that Load refuses (the error wraps the loader's). On any failure the old
+// file at path is untouched.
+func (m *Model) Save(path string) error {
+	var buf bytes.Buffer
+	if _, err := m.WriteTo(&buf); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if _, err := ReadModel(bytes.NewReader(buf.Bytes())); err != nil {
+		return fmt.Errorf("nn: saving model %s: the file would not load, so nothing was written: %w", path, err)
+	}
+	err := atomicfile.Write(path, func(w io.Writer) error {
+		_, err := w.Write(buf.Bytes())
+		return err
+	})
 	if err != nil {
-		return fmt.Errorf("nn: saving model: %w", err)
-	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if err = tmp.Chmod(0o644); err != nil {
-		return fmt.Errorf("nn: saving model: %w", err)
-	}
-	if _, err = m.WriteTo(tmp); err != nil {
 		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if d, derr := os.Open(dir); derr == nil {
-		d.Sync() // make the rename durable; not all systems support it
-		d.Close()
 	}
 	return nil
 }
