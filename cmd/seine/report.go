@@ -9,6 +9,7 @@ import (
 	"os"
 
 	"github.com/seine-ml/seine/diag"
+	"github.com/seine-ml/seine/internal/ctxio"
 	"github.com/seine-ml/seine/internal/report"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/score"
@@ -79,7 +80,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err := checkWritable("-out", *out); err != nil {
 		return err
 	}
-	m, err := loadModel(*modelPath)
+	m, err := loadModel(ctx, *modelPath)
 	if err != nil {
 		return err
 	}
@@ -87,11 +88,11 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	set, err := loadData(*dataPath, dataForModel(m, *label, false))
+	set, err := loadData(ctx, *dataPath, dataForModel(m, *label, false))
 	if err != nil {
 		return err
 	}
-	digest, err := fileSHA256(*dataPath)
+	digest, err := fileSHA256(ctx, *dataPath)
 	if err != nil {
 		return openError("data", err)
 	}
@@ -125,15 +126,24 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	return nil
 }
 
-// fileSHA256 returns the hex SHA-256 digest of the file at path.
-func fileSHA256(path string) (string, error) {
+// fileSHA256 returns the hex SHA-256 digest of the regular file at path,
+// read under ctx, or "" for a pipe or device, which cannot be read twice.
+func fileSHA256(ctx context.Context, path string) (string, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return "", err
 	}
 	defer f.Close()
+	if fi, err := f.Stat(); err != nil || !fi.Mode().IsRegular() {
+		return "", err
+	}
+	r := ctxio.NewReader(ctx, f)
+	defer r.Close()
 	h := sha256.New()
-	if _, err := io.Copy(h, f); err != nil {
+	if _, err := io.Copy(h, r); err != nil {
+		if ctx.Err() != nil {
+			return "", context.Cause(ctx)
+		}
 		return "", err
 	}
 	return hex.EncodeToString(h.Sum(nil)), nil
