@@ -401,11 +401,19 @@ func training(m *nn.Model) []kv {
 	} else {
 		out = append(out, kv{"class weights", "none (every row counts the same)"})
 	}
-	out = append(out, kv{"initialisation seed", strconv.FormatUint(sm.Seed, 10)}, kv{"trained by", orDash(sm.Library)})
+	out = append(out, kv{"initialisation seed", strconv.FormatUint(sm.Seed, 10)}, kv{"trained by", library(sm.Library)})
 	return out
 }
 
 func nanPtr(v float64) *float64 { return &v }
+
+// library names the seine version that trained a model.
+func library(v string) string {
+	if v == "" {
+		return "–"
+	}
+	return "seine " + v
+}
 
 func orDash(s string) string {
 	if s == "" {
