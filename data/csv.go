@@ -57,26 +57,35 @@ type CSVOptions struct {
 	MaxRows int
 	// Columns, when non-nil, picks the feature columns by name in this
 	// order and says how to read each; it replaces Features (which must
-	// then be nil). A column absent from the header is an error naming it.
+	// then be nil; setting both is ErrOptions). Names must be distinct, and
+	// when Inputs > 0 it must equal len(Columns). A column absent from the
+	// header is an error naming it; columns not named are ignored.
 	Columns []Column
 	// MissingTokens are the cell texts (after trimming spaces) that count
-	// as missing in a feature column; nil means "", "?" and "NA". A missing
-	// cell reads as NaN in a column whose Column.Missing is set and is an
-	// error elsewhere.
+	// as missing in a feature column; nil means "", "?" and "NA" (an empty
+	// slice means none). A missing cell reads as NaN in a column whose
+	// Column.Missing is set and is an error wrapping ErrMissingValue
+	// elsewhere, including every column read by Features or by default.
+	// Label cells are never missing: a token there is read as a class name.
+	// A token may not have surrounding spaces.
 	MissingTokens []string
-	// Keep names columns whose text is copied to Set.Kept for every row
-	// (e.g. an id to join predictions back); they may also be features or
-	// the label.
+	// Keep names columns whose text (trimmed) is copied to Set.Kept for
+	// every row (e.g. an id to join predictions back), in this order; they
+	// may also be features or the label. A name absent from the header is
+	// an error naming it (ErrMissingColumn); a name listed twice is
+	// ErrOptions.
 	Keep []string
 }
 
 // Column says how ReadCSV reads one feature column.
 type Column struct {
+	// Name is the column's name in the header.
 	Name string
 	// Text keeps the cell text: a category column. X then holds the index
-	// of the text in Set.Texts[j].
+	// of the trimmed text in Set.Texts[j]. false reads a number.
 	Text bool
-	// Missing lets a missing token read as NaN instead of an error.
+	// Missing lets a missing token (CSVOptions.MissingTokens) read as NaN
+	// instead of an error.
 	Missing bool
 }
 
@@ -85,6 +94,10 @@ const (
 	defaultMaxLineBytes = 1 << 20
 	maxShown            = 40 // longest cell value quoted in a message
 )
+
+// defaultMissingTokens are the missing tokens when CSVOptions.MissingTokens
+// is nil.
+var defaultMissingTokens = []string{"", "?", "NA"}
 
 // check reports contradictory options. These are the caller's mistakes, not
 // the file's, so the error is not a *Error.
@@ -109,6 +122,35 @@ func (o *CSVOptions) check() error {
 		}
 		seen[f] = true
 	}
+	if o.Columns != nil {
+		switch {
+		case o.Features != nil:
+			return describe(ErrOptions, "data: Columns and Features both set; use one")
+		case len(o.Columns) == 0:
+			return describe(ErrOptions, "data: Columns is empty; use nil for every column")
+		case o.Inputs > 0 && o.Inputs != len(o.Columns):
+			return describe(ErrOptions, "data: Inputs is %d but Columns names %d columns", o.Inputs, len(o.Columns))
+		}
+		clear(seen)
+		for _, c := range o.Columns {
+			if seen[c.Name] {
+				return describe(ErrOptions, "data: column %q named twice in Columns", c.Name)
+			}
+			seen[c.Name] = true
+		}
+	}
+	for _, t := range o.MissingTokens {
+		if strings.TrimSpace(t) != t {
+			return describe(ErrOptions, "data: missing token %q has surrounding spaces, which are trimmed from every cell", t)
+		}
+	}
+	clear(seen)
+	for _, k := range o.Keep {
+		if seen[k] {
+			return describe(ErrOptions, "data: column %q named twice in Keep", k)
+		}
+		seen[k] = true
+	}
 	clear(seen)
 	for _, c := range o.Classes {
 		switch {
@@ -125,9 +167,18 @@ func (o *CSVOptions) check() error {
 }
 
 // ReadCSV reads a header row and data rows from r into a Set. See the
-// package documentation for the rules. A problem in the file is returned as
-// a *Error naming its line, row and column; the first problem met is
-// reported.
+// package documentation for the rules.
+//
+// Problems in cells (a non-number, a non-finite number, a missing value
+// where the column refuses one, an unknown class, an empty label) are
+// collected over the whole file and returned together as an *ErrorList,
+// even when there is only one. A problem with the file's structure (the
+// header, a row's field count, quoting, line ends, a size limit) stops
+// reading at once: it is returned as a lone *Error when no cell problem came
+// before it, else as the last entry of an *ErrorList after them. Either way
+// errors.As(err, &e) with e a *Error finds the first problem in the file,
+// and errors.Is matches the sentinel of any listed problem. Contradictory
+// options are an error wrapping ErrOptions that is not a *Error.
 func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	if err := opt.check(); err != nil {
 		return nil, err
@@ -202,16 +253,24 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		}
 	}
 
+	// Feature columns: feature k is read from field feat[k] as cols[k] says.
+	cols := opt.Columns
+	if cols == nil && opt.Features != nil {
+		cols = make([]Column, len(opt.Features))
+		for k, f := range opt.Features {
+			cols[k] = Column{Name: f}
+		}
+	}
 	var feat []int
-	if opt.Features != nil {
+	if cols != nil {
 		var missing []string
-		for _, f := range opt.Features {
-			j, ok := index[f]
+		for _, c := range cols {
+			j, ok := index[c.Name]
 			switch {
 			case !ok:
-				missing = append(missing, f)
+				missing = append(missing, c.Name)
 			case j == labelCol:
-				return nil, &Error{Line: hLine, Column: f, Field: j + 1, Err: describe(ErrOptions, "the label column cannot also be a feature")}
+				return nil, &Error{Line: hLine, Column: c.Name, Field: j + 1, Err: describe(ErrOptions, "the label column cannot also be a feature")}
 			}
 			feat = append(feat, j)
 		}
@@ -222,6 +281,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		for j := range names {
 			if j != labelCol {
 				feat = append(feat, j)
+				cols = append(cols, Column{Name: names[j]})
 			}
 		}
 		if opt.Inputs > 0 && len(feat) != opt.Inputs {
@@ -230,6 +290,18 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	}
 	if len(feat) == 0 {
 		return nil, &Error{Line: hLine, Err: describe(ErrMissingColumn, "no feature columns; expected at least one besides the label")}
+	}
+	keep := make([]int, len(opt.Keep))
+	var absent []string
+	for i, k := range opt.Keep {
+		j, ok := index[k]
+		if !ok {
+			absent = append(absent, k)
+		}
+		keep[i] = j
+	}
+	if len(absent) > 0 {
+		return nil, &Error{Line: hLine, Column: absent[0], Err: describe(ErrMissingColumn, "kept columns %s not in the header (%s)", nameList(absent), nameList(names))}
 	}
 
 	var known map[string]int
@@ -240,14 +312,88 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		}
 	}
 
-	// Data rows.
+	// role[j] is what field j is: feature k ≥ 0, the label, or ignored.
+	const (
+		ignored = -1
+		label   = -2
+	)
+	role := make([]int, len(names))
+	for j := range role {
+		role[j] = ignored
+	}
+	for k, j := range feat {
+		role[j] = k
+	}
+	if readLabels && labelCol >= 0 {
+		role[labelCol] = label
+	}
 	nf := len(feat)
 	var (
+		texts   [][]string       // per feature: distinct texts of a Text column, nil for numbers
+		textIdx []map[string]int // per feature: index of each text in texts[k]
+	)
+	for k, c := range cols {
+		if c.Text {
+			if texts == nil {
+				texts = make([][]string, nf)
+				textIdx = make([]map[string]int, nf)
+			}
+			texts[k] = []string{}
+			textIdx[k] = make(map[string]int)
+		}
+	}
+	tokens := opt.MissingTokens
+	if tokens == nil {
+		tokens = defaultMissingTokens
+	}
+	isToken := make(map[string]bool, len(tokens))
+	tokensFirst := false // a token is itself a number, so tokens are checked before parsing
+	for _, t := range tokens {
+		isToken[t] = true
+		if _, err := parseNumber(t); err == nil {
+			tokensFirst = true
+		}
+	}
+
+	// Problems in cells are collected over the whole file: the first
+	// MaxListed in list, and past that a count per field in more.
+	var (
+		list   []*Error
+		more   []int
+		failed bool
+		row    int
+	)
+	// note records a problem in field j of the current row.
+	note := func(j int, kind, also error, format string, args ...any) {
+		failed = true
+		if len(list) >= MaxListed {
+			if more == nil {
+				more = make([]int, len(names))
+			}
+			more[j]++
+			return
+		}
+		l, _ := cr.FieldPos(j)
+		list = append(list, &Error{Line: l, Row: row, Column: names[j], Field: j + 1, Err: &detail{msg: fmt.Sprintf(format, args...), kind: kind, cause: also}})
+	}
+	// stop ends reading at a problem with the file's structure, returning
+	// it after the cell problems found before it.
+	stop := func(err error) error {
+		var e *Error
+		if len(list) == 0 || !errors.As(err, &e) {
+			return err
+		}
+		return newErrorList(append(list, e), more, names)
+	}
+
+	// Data rows.
+	var (
 		x      = make([]float64, 0, 64*nf)
+		xr     = make([]float64, nf) // the current row, in feature order
 		lines  []int
 		labels []string   // single-label cells, trimmed
 		multi  [][]string // multi-label cells, split and trimmed
-		row    int
+		kept   [][]string
 	)
 	for {
 		rec, err := rd.next(row + 1)
@@ -255,72 +401,108 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			break
 		}
 		if err != nil {
-			return nil, err
+			return nil, stop(err)
 		}
 		row++
 		line, _ := cr.FieldPos(0)
 		if opt.MaxRows > 0 && row > opt.MaxRows {
-			return nil, &Error{Line: line, Row: row, Err: describe(ErrTooLarge, "more than %d rows (CSVOptions.MaxRows)", opt.MaxRows)}
+			return nil, stop(&Error{Line: line, Row: row, Err: describe(ErrTooLarge, "more than %d rows (CSVOptions.MaxRows)", opt.MaxRows)})
 		}
 		if len(rec) != len(names) {
-			return nil, &Error{Line: line, Row: row, Err: describe(ErrFieldCount, "%d fields, expected %d as in the header", len(rec), len(names))}
+			return nil, stop(&Error{Line: line, Row: row, Err: describe(ErrFieldCount, "%d fields, expected %d as in the header", len(rec), len(names))})
 		}
-		var first *Error // the problem with the lowest field index in this row
-		note := func(j int, kind error, format string, args ...any) {
-			if first == nil || j+1 < first.Field {
-				l, _ := cr.FieldPos(j)
-				first = &Error{Line: l, Row: row, Column: names[j], Field: j + 1, Err: describe(kind, format, args...)}
+		// Fields in file order, so that problems are listed in file order.
+		for j, raw := range rec {
+			k := role[j]
+			if k == ignored {
+				continue
 			}
-		}
-		for _, j := range feat {
-			v, kind := parseNumber(rec[j])
-			switch kind {
-			case nil:
-			case ErrEmptyField:
-				note(j, kind, "empty field, expected a number")
-			case ErrNotFinite:
-				note(j, kind, "%s is not a finite number", shown(rec[j]))
-			default:
-				note(j, kind, "%s is not a number", shown(rec[j]))
-			}
-			x = append(x, v)
-		}
-		if readLabels {
-			cell := strings.TrimSpace(rec[labelCol])
-			if opt.Multilabel {
-				var set []string
-				if cell != "" {
-					set = strings.Split(cell, "|")
-					for i := range set {
-						set[i] = strings.TrimSpace(set[i])
-						c := set[i]
-						if c == "" {
-							note(labelCol, ErrUnknownClass, "%s has an empty class name between '|'", shown(cell))
-							break
-						}
-						if _, ok := known[c]; known != nil && !ok {
-							note(labelCol, ErrUnknownClass, "%s: class %s is not one of %s", shown(cell), shown(c), classList(opt.Classes))
-							break
-						}
+			cell := strings.TrimSpace(raw)
+			if k == label {
+				if opt.Multilabel {
+					set := readMulti(cell, known, opt.Classes, func(format string, args ...any) {
+						note(j, ErrUnknownClass, nil, format, args...)
+					})
+					if !failed {
+						multi = append(multi, set)
 					}
+					continue
 				}
-				multi = append(multi, set)
-			} else {
 				if _, ok := known[cell]; cell == "" {
-					note(labelCol, ErrEmptyField, "empty label, expected a class name")
+					note(j, ErrEmptyField, nil, "empty label, expected a class name")
 				} else if known != nil && !ok {
-					note(labelCol, ErrUnknownClass, "%s is not one of the classes %s", shown(cell), classList(opt.Classes))
+					hint := ""
+					if strings.Contains(cell, "|") {
+						hint = "; multi-label? set `multilabel: true`"
+					}
+					note(j, ErrUnknownClass, nil, "%s is not one of the classes %s%s", shown(cell), classList(opt.Classes), hint)
 				}
-				labels = append(labels, cell)
+				if !failed {
+					labels = append(labels, cell)
+				}
+				continue
 			}
+			c := cols[k]
+			missing := (c.Text || tokensFirst) && isToken[cell]
+			v := 0.0
+			if !missing && !c.Text {
+				var kind error
+				v, kind = parseNumber(cell)
+				switch {
+				case kind == nil:
+				case !tokensFirst && isToken[cell]:
+					missing = true
+				case kind == ErrEmptyField:
+					note(j, kind, nil, "empty field, expected a number")
+				case kind == ErrNotFinite:
+					note(j, kind, nil, "%s is not a finite number", shown(cell))
+				default:
+					note(j, kind, nil, "%s is not a number; declare `type: category` for a text column", shown(cell))
+				}
+			}
+			switch {
+			case missing && c.Missing:
+				v = math.NaN()
+			case missing:
+				var also error
+				if cell == "" {
+					also = ErrEmptyField
+				}
+				rules := "mean, median, mode"
+				if c.Text {
+					rules = "level, mode"
+				}
+				note(j, ErrMissingValue, also, "missing value %s; the spec's missing rule for this input is refuse: set `missing:` (e.g. %s)", shown(cell), rules)
+			case c.Text:
+				idx, ok := textIdx[k][cell]
+				if !ok {
+					idx = len(texts[k])
+					cell = strings.Clone(cell) // not the record's backing string
+					texts[k] = append(texts[k], cell)
+					textIdx[k][cell] = idx
+				}
+				v = float64(idx)
+			}
+			xr[k] = v
 		}
-		if first != nil {
-			return nil, first
+		if failed {
+			continue // nothing more is kept once the file is known to be bad
+		}
+		x = append(x, xr...)
+		if len(keep) > 0 {
+			kr := make([]string, len(keep))
+			for i, j := range keep {
+				kr[i] = strings.Clone(strings.TrimSpace(rec[j]))
+			}
+			kept = append(kept, kr)
 		}
 		lines = append(lines, line)
 	}
 	if row == 0 {
 		return nil, &Error{Line: hLine, Err: describe(ErrEmpty, "only a header; expected data rows after it")}
+	}
+	if failed {
+		return nil, newErrorList(list, more, names)
 	}
 
 	s := &Set{
@@ -328,6 +510,10 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		Features:   make([]string, nf),
 		Multilabel: opt.Multilabel && readLabels,
 		Lines:      lines,
+		Texts:      texts,
+	}
+	if opt.Keep != nil {
+		s.Kept = kept
 	}
 	for i, j := range feat {
 		s.Features[i] = names[j]
@@ -335,6 +521,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	if !readLabels {
 		return s, nil
 	}
+	s.Label = names[labelCol]
 	classes := opt.Classes
 	if classes == nil {
 		if opt.Multilabel {
@@ -366,6 +553,29 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	}
 	s.Y = mat.NewDense(row, len(classes), y)
 	return s, nil
+}
+
+// readMulti splits a multi-label cell at '|' into trimmed class names,
+// calling bad for the first problem (an empty name, or a name not in known
+// when known is not nil). An empty cell is a row with no class.
+func readMulti(cell string, known map[string]int, classes []string, bad func(format string, args ...any)) []string {
+	if cell == "" {
+		return nil
+	}
+	set := strings.Split(cell, "|")
+	for i := range set {
+		set[i] = strings.TrimSpace(set[i])
+		c := set[i]
+		if c == "" {
+			bad("%s has an empty class name between '|'", shown(cell))
+			break
+		}
+		if _, ok := known[c]; known != nil && !ok {
+			bad("%s: class %s is not one of %s", shown(cell), shown(c), classList(classes))
+			break
+		}
+	}
+	return set
 }
 
 var bom = []byte("\uFEFF")
@@ -413,6 +623,8 @@ type limitReader struct {
 	quoted  bool
 	recLine int // line where the current record started
 	recLen  int
+	cr      bool // the last byte was a carriage return outside quotes
+	lf      bool // a line feed has been seen
 	err     *Error
 	errLine int // line at which err was found
 }
@@ -423,8 +635,22 @@ func (l *limitReader) Read(p []byte) (int, error) {
 	}
 	n, err := l.r.Read(p)
 	for i, c := range p[:n] {
+		if l.cr && c != '\n' {
+			// encoding/csv ends lines at LF (a CR before it is dropped),
+			// so a lone CR would join lines into one and make a nonsense
+			// header or cell: say what it is instead.
+			if l.lf {
+				l.err = &Error{Line: l.line, Err: describe(ErrLineEnds, "a carriage return (CR) not followed by a line feed (LF) outside quotes; lines must end in LF or CRLF")}
+			} else {
+				l.err = &Error{Line: l.line, Err: describe(ErrLineEnds, "lines end in a carriage return (CR) alone, as old Mac files do; save the file with LF or CRLF line ends")}
+			}
+			l.errLine = l.line
+			return i, l.err
+		}
+		l.cr = c == '\r' && !l.quoted
 		switch c {
 		case '\n':
+			l.lf = true
 			l.line++
 			l.lineLen = 0
 			if !l.quoted {

@@ -180,7 +180,7 @@ func TestReadCSVBad(t *testing.T) {
 			msg: "line 3 (row 2): 2 fields, expected 3 as in the header"},
 		{name: "too many fields", in: "a,b,k\n1,2,3,x\n", kind: ErrFieldCount, line: 2, row: 1},
 		{name: "not a number", in: "sepal,petal_width,k\n1,2,x\n\n1,2,x\n1,2,x\n1,2,x\n1,abc,x\n", kind: ErrNotNumber, line: 7, row: 5, column: "petal_width",
-			msg: `line 7 (row 5), column "petal_width": "abc" is not a number`},
+			msg: `line 7 (row 5), column "petal_width": "abc" is not a number; declare ` + "`type: category`" + ` for a text column`},
 		{name: "empty feature", in: "a,b,k\n1,,x\n", kind: ErrEmptyField, line: 2, row: 1, column: "b"},
 		{name: "blank feature", in: "a,b,k\n1,  ,x\n", kind: ErrEmptyField, line: 2, row: 1, column: "b"},
 		{name: "NaN", in: "a,b,k\n1,NaN,x\n", kind: ErrNotFinite, line: 2, row: 1, column: "b"},

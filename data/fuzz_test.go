@@ -28,6 +28,16 @@ func fuzzOptions(mode byte) CSVOptions {
 	if mode&64 != 0 {
 		o.Comma = ';'
 	}
+	if mode&128 != 0 {
+		// Typed columns, kept columns and custom missing tokens; with
+		// bit 32, Columns replaces Features.
+		o.Keep = []string{"x", "k"}
+		o.MissingTokens = []string{"?", "-1", ""}
+		if o.Features != nil {
+			o.Features = nil
+			o.Columns = []Column{{Name: "y", Text: true, Missing: true}, {Name: "x", Missing: true}, {Name: "z", Text: true}}
+		}
+	}
 	return o
 }
 
@@ -39,16 +49,7 @@ func FuzzCSV(f *testing.F) {
 		opt := fuzzOptions(mode)
 		s, err := ReadCSV(bytes.NewReader(in), opt)
 		if err != nil {
-			var e *Error
-			if !errors.As(err, &e) {
-				t.Fatalf("error %v (%T) is not a *Error", err, err)
-			}
-			if e.Line < 1 {
-				t.Fatalf("error %q has line %d", err, e.Line)
-			}
-			if e.Err == nil {
-				t.Fatalf("error %q wraps nothing", err)
-			}
+			checkError(t, err)
 			if s != nil {
 				t.Fatal("a set returned with an error")
 			}
@@ -58,10 +59,31 @@ func FuzzCSV(f *testing.F) {
 		if r != len(s.Lines) || r < 1 || c != len(s.Features) {
 			t.Fatalf("dims %d×%d, %d lines, %d features", r, c, len(s.Lines), len(s.Features))
 		}
-		for _, v := range s.X.RawMatrix().Data {
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				t.Fatalf("non-finite value %v accepted", v)
+		for i := range r {
+			for j, v := range s.X.RawRowView(i) {
+				col := Column{Name: s.Features[j]}
+				if opt.Columns != nil {
+					col = opt.Columns[j]
+				}
+				switch {
+				case math.IsNaN(v) && col.Missing:
+				case math.IsNaN(v) || math.IsInf(v, 0):
+					t.Fatalf("value %v accepted in column %q", v, col.Name)
+				case col.Text && (v != math.Trunc(v) || v < 0 || int(v) >= len(s.Texts[j])):
+					t.Fatalf("text index %v of %d texts in column %q", v, len(s.Texts[j]), col.Name)
+				}
 			}
+		}
+		if wantKept := r; (opt.Keep == nil && s.Kept != nil) || (opt.Keep != nil && len(s.Kept) != wantKept) {
+			t.Fatalf("%d kept rows for %d rows and Keep %v", len(s.Kept), r, opt.Keep)
+		}
+		for _, k := range s.Kept {
+			if len(k) != len(opt.Keep) {
+				t.Fatalf("kept row %v for Keep %v", k, opt.Keep)
+			}
+		}
+		if (opt.NoLabel && s.Label != "") || (opt.Label != "" && !opt.NoLabel && s.Label != opt.Label) {
+			t.Fatalf("label %q with NoLabel %v", s.Label, opt.NoLabel)
 		}
 		for i := 1; i < len(s.Lines); i++ {
 			if s.Lines[i] <= s.Lines[i-1] || s.Lines[0] < 2 {
@@ -96,6 +118,38 @@ func FuzzCSV(f *testing.F) {
 	})
 }
 
+// checkError fails unless err is a *Error, or an *ErrorList of them, each
+// with a line and a wrapped problem, the list within its cap. (The fuzz
+// options never contradict themselves, so there is no options error.)
+func checkError(t *testing.T, err error) {
+	t.Helper()
+	all := []*Error{}
+	var list *ErrorList
+	if errors.As(err, &list) {
+		if len(list.Errors) == 0 || len(list.Errors) > MaxListed+1 {
+			t.Fatalf("a list of %d problems", len(list.Errors))
+		}
+		if len(list.More) > 0 && len(list.Errors) < MaxListed {
+			t.Fatalf("%d listed but %v more", len(list.Errors), list.More)
+		}
+		all = list.Errors
+	} else {
+		var e *Error
+		if !errors.As(err, &e) {
+			t.Fatalf("error %v (%T) is not a *Error", err, err)
+		}
+		all = append(all, e)
+	}
+	for _, e := range all {
+		if e.Line < 1 {
+			t.Fatalf("error %q has line %d", e, e.Line)
+		}
+		if e.Err == nil {
+			t.Fatalf("error %q wraps nothing", e)
+		}
+	}
+}
+
 // TestFuzzRegressions replays inputs worth keeping beside the corpus.
 func TestFuzzRegressions(t *testing.T) {
 	for _, in := range []string{
@@ -106,11 +160,10 @@ func TestFuzzRegressions(t *testing.T) {
 		"\uFEFF\"",
 		"a,k\n1,\"\"\"",
 	} {
-		for mode := range 128 {
+		for mode := range 256 {
 			_, err := ReadCSV(bytes.NewReader([]byte(in)), fuzzOptions(byte(mode)))
-			var e *Error
-			if err != nil && (!errors.As(err, &e) || e.Line < 1) {
-				t.Errorf("%q mode %d: %v", in, mode, err)
+			if err != nil {
+				checkError(t, err)
 			}
 		}
 	}

@@ -23,7 +23,8 @@ type Set struct {
 	// missing cell (one of the missing tokens).
 	Texts [][]string
 	// Kept holds the text of the CSVOptions.Keep columns for each row
-	// (rows × len(Keep)), copied through untouched; nil without Keep.
+	// (rows × len(Keep), in Keep order), trimmed like every cell and
+	// otherwise untouched; nil without Keep.
 	Kept [][]string
 	// Label is the name of the label column in the file's header; "" when
 	// the file had none.
@@ -98,7 +99,8 @@ func (s *Set) Counts() []int {
 }
 
 // Subset returns a new set holding copies of the given rows, in that order
-// (a row may repeat). Class and feature names are copied too. An index out
+// (a row may repeat). Class and feature names, Texts (shared, read-only),
+// the Kept rows of the given rows and Label are carried over. An index out
 // of range panics. An empty rows gives a set of zero rows with nil X and Y.
 func (s *Set) Subset(rows []int) *Set {
 	n := s.Rows()

@@ -15,9 +15,12 @@
 //
 //	version: 1               # required; integer; the only version is 1
 //	name: request-triage     # text; default ""
-//	inputs: 12               # required; integer ≥ 1, or a list of distinct,
-//	                         # non-empty feature names (then CSV columns are
-//	                         # picked by name and inputs = the list length)
+//	inputs: 12               # required; integer ≥ 1 (that many number
+//	                         # inputs, CSV columns taken in order), or a list
+//	                         # of inputs (see Inputs below; CSV columns are
+//	                         # then picked by name, in any order)
+//	missing_tokens: ["", "?", "NA"] # list of cell texts that count as missing;
+//	                         # default "", "?", "NA"; [] = none
 //	hidden:                  # list of layers, input side first; default none
 //	  - units: 32            # required; integer ≥ 1
 //	    activation: tanh     # required; sigmoid | tanh | relu | leaky-relu |
@@ -44,6 +47,62 @@
 //	                         # adam; 0 = all rows
 //	  rate: 0.01             # step size for gd, momentum, adam; ≥ 0; 0 = not set
 //	  tolerance: 1e-6        # stop when ‖∇J‖ falls below it; ≥ 0; 0 = not set
+//	  class_weights: balanced # balanced, or a mapping class name → weight > 0
+//	                         # (e.g. {fraud: 20}); default every class 1
+//
+// # Inputs
+//
+// Each entry of a list of inputs is a bare name, which is a number input
+// that refuses missing cells, or a mapping:
+//
+//	inputs:
+//	  - req_per_min            # a number, as a bare name
+//	  - name: plan             # required; distinct, non-empty
+//	    type: category         # number | category; default number
+//	    levels: [basic, pro, team] # category only; optional: learned from
+//	                           # the training rows when absent
+//	  - name: tenure
+//	    missing: median        # number: refuse | mean | median | mode |
+//	                           # a finite number (a constant fill);
+//	                           # category: refuse | level | mode;
+//	                           # default refuse
+//	  - name: region
+//	    type: category
+//	    missing: level         # a unit of its own for missing cells
+//	    unknown: ignore        # category only: refuse | ignore; default refuse
+//
+// A number input is one input unit: a missing cell is filled by its rule
+// (mean, median or mode of the training rows, or the constant), then the
+// value is standardised with the scaler. A category of L levels is L
+// units, one-hot and not scaled; with missing: level it has L+1 units, the
+// last one marking a missing cell; with missing: mode a missing cell counts
+// as the most frequent training level (on ties, the first in level order).
+// For a number, mode is the most frequent training value (on ties, the
+// smallest).
+// With unknown: ignore, a level never seen in training sets all the input's
+// units to 0 at prediction; with refuse (the default) it is an error.
+//
+// Declared levels are at least 2, distinct, non-empty, without surrounding
+// spaces (cells are trimmed before they are compared), and none of them
+// may be a missing token; their order is the order of the units. Levels
+// that are not declared are learned from the training rows only and stored
+// in the spec a model holds, in this order: ascending by value when every
+// level is an integer (so "2" comes before "10"), else in byte order of
+// the texts (so "B" comes before "a"). The fill values of mean, median and
+// mode are likewise fitted on the training rows only.
+//
+// A cell counts as missing when its text, with surrounding spaces
+// trimmed, is one of missing_tokens; each token is given once and without
+// surrounding spaces.
+//
+// # Class weights
+//
+// A class weight w_k multiplies the cross-entropy terms of class k. With
+// class_weights: balanced, w_k = m/(K·m_k) for m training rows, K classes
+// and m_k training rows of class k; with a mapping, each named class (an
+// output class) gets its weight > 0 and the others 1. For a multi-label
+// output, m_k counts the rows that carry class k and the weight applies to
+// the positive side of each class. The penalty is not weighted.
 //
 // # Output
 //
@@ -71,10 +130,17 @@
 // # Limits
 //
 // Limits caps the bytes read (default 1 MiB; a longer input fails with
-// ErrTooLarge after reading at most MaxBytes+1 bytes), the param count
+// ErrTooLarge after reading at most MaxBytes+1 bytes) and, with the same
+// bound, the spec as the parser sees it: each alias counts as a copy of
+// its anchored value, so a short spec cannot stand for one far longer than
+// its readers accept (an alias bomb is refused at the alias that passes
+// the limit, before anything is built from it). It also caps the param count
 // Σ_l (n_{l−1}+1)·n_l over the layer widths n_0 = inputs, …, n_L = output
-// units (default 50 000 000; computed without overflow) and the number of
-// classes (default 65 536; checked before `units: K` makes K names).
+// units (default 50 000 000; computed without overflow; n_0 counts the
+// declared levels, and one unit for a category whose levels are still to
+// be learned), the number of classes (default 65 536; checked before
+// `units: K` makes K names) and the number of declared levels of each
+// category (default 65 536; checked before the levels are copied).
 //
 // # Errors
 //
@@ -90,5 +156,8 @@
 // # Writing
 //
 // Network.WriteYAML writes the canonical form, which Parse reads back to an
-// equal Network.
+// equal Network: a plain number input as a bare name, any other input as a
+// mapping with only its non-default keys in the order name, type, levels,
+// missing, unknown; missing_tokens only when they differ from the default;
+// class weights as balanced or a mapping in class order.
 package spec

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"strconv"
 	"strings"
 
 	"github.com/seine-ml/seine/spec"
@@ -54,6 +55,53 @@ output:
 	// 5:17: hidden[0].activation: unknown activation "tanhh" (want one of sigmoid, tanh, relu, leaky-relu, softplus, identity)
 	// 7:22: output.classes[2]: duplicate class name "yes" (also output.classes[0])
 	// true true
+}
+
+func ExampleParse_typedInputs() {
+	const src = `
+version: 1
+inputs:
+  - req_per_min
+  - name: plan
+    type: category
+    levels: [basic, pro, team]
+  - name: tenure
+    missing: median
+  - name: region
+    type: category
+    missing: level
+    unknown: ignore
+hidden:
+  - units: 8
+    activation: relu
+output:
+  classes: [stays, leaves]
+  activation: sigmoid
+train:
+  class_weights: {leaves: 20}
+`
+	n, err := spec.Parse(strings.NewReader(src))
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for i, name := range n.Features {
+		in := n.Input(i)
+		fmt.Printf("%-11s %-8v levels=%v missing=%v units=%d\n", name, in.Type, in.Levels, in.Missing, in.Units())
+	}
+	// region's levels are learned when the encoder is fitted, so the
+	// input width is not known yet; Sizes counts one unit for it.
+	fmt.Println("resolved:", n.Resolved(), "sizes (lower bound):", n.Sizes())
+	fmt.Println("missing tokens:", strconv.Quote(strings.Join(n.MissingTokens, "|")))
+	fmt.Println("class weights:", n.Train.ClassWeights.By)
+	// Output:
+	// req_per_min number   levels=[] missing=refuse units=1
+	// plan        category levels=[basic pro team] missing=refuse units=3
+	// tenure      number   levels=[] missing=median units=1
+	// region      category levels=[] missing=level units=0
+	// resolved: false sizes (lower bound): [6 8 1]
+	// missing tokens: "|?|NA"
+	// class weights: map[leaves:20]
 }
 
 func ExampleNetwork_WriteYAML() {

@@ -2,10 +2,12 @@ package spec
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -35,13 +37,22 @@ func ParseLimits(r io.Reader, lim Limits) (*Network, error) {
 	if e != nil {
 		return nil, e
 	}
-	p := &parser{lim: lim, locs: make(map[string]loc), bad: make(map[string]bool)}
+	if e := checkExpansion(root, len(data), lim); e != nil {
+		return nil, e
+	}
+	p := &parser{lim: lim, locs: make(map[string]loc), bad: make(map[string]bool),
+		nulls: make(map[string]*yaml.Node), keys: make(map[string]loc),
+		quiet: make(map[string]bool), untyped: make(map[string]bool)}
 	n := p.network(root)
 	for _, e := range n.check(lim) {
-		if p.isBad(e.Field) {
+		if p.followOn(e) {
 			continue
 		}
-		e.Line, e.Column, e.Field = p.locate(e.Field)
+		if l, ok := p.keys[e.Field]; ok && errors.Is(e, ErrUnknownName) {
+			e.Line, e.Column = l.line, l.col
+		} else {
+			e.Line, e.Column, e.Field = p.locate(e.Field)
+		}
 		p.errs = append(p.errs, e)
 	}
 	if err := asError(p.errs); err != nil {
@@ -207,6 +218,34 @@ type parser struct {
 	errs []*Error
 	locs map[string]loc  // canonical key path → position of its value
 	bad  map[string]bool // key paths that already have an error
+	// nulls holds the keys written with an empty (null) value, by key
+	// path, so that a required key can be reported where it stands.
+	nulls map[string]*yaml.Node
+	// keys holds the position of a key (not its value) for key paths
+	// whose key is itself a name that check may refuse: class_weights.
+	keys map[string]loc
+	// quiet holds key paths whose check problems follow from one already
+	// reported elsewhere (e.g. an empty name after a missing name key).
+	quiet map[string]bool
+	// untyped holds the paths of inputs whose type could not be read; the
+	// check's conflicts between their type and other keys are follow-ons.
+	untyped map[string]bool
+}
+
+// followOn reports whether e, a problem found by check, only follows from
+// a problem the parser already reported.
+func (p *parser) followOn(e *Error) bool {
+	if p.isBad(e.Field) || p.quiet[e.Field] {
+		return true
+	}
+	if errors.Is(e, ErrConflict) {
+		for f := e.Field; f != ""; f = parent(f) {
+			if p.untyped[f] {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 func (p *parser) errorf(n *yaml.Node, field string, kind error, format string, args ...any) {
@@ -339,6 +378,7 @@ func (p *parser) fields(n *yaml.Node, path string, known ...string) map[string]*
 			continue
 		}
 		if isNull(v) {
+			p.nulls[field] = v
 			continue
 		}
 		out[k.Value] = v
@@ -360,7 +400,12 @@ func (p *parser) require(f map[string]*yaml.Node, m *yaml.Node, path, key, want 
 	if v, ok := f[key]; ok {
 		return v, true
 	}
-	p.errorf(m, join(path, key), ErrMissingField, "missing key %s (%s)", key, want)
+	field := join(path, key)
+	if v, ok := p.nulls[field]; ok {
+		p.errorf(v, field, ErrMissingField, "key %s has no value (%s)", key, want)
+		return nil, false
+	}
+	p.errorf(m, field, ErrMissingField, "missing key %s (%s)", key, want)
 	return nil, false
 }
 
@@ -495,8 +540,9 @@ func (p *parser) text(n *yaml.Node, field, want string) (string, bool) {
 	return s.Value, true
 }
 
-// list reads a list of names.
-func (p *parser) list(n *yaml.Node, field, what string) ([]string, bool) {
+// list reads a list of texts; want describes one entry. It returns false,
+// without reporting, when n is not a list.
+func (p *parser) list(n *yaml.Node, field, want string) ([]string, bool) {
 	p.mark(field, n)
 	s := deref(n)
 	if s.Kind != yaml.SequenceNode {
@@ -504,7 +550,7 @@ func (p *parser) list(n *yaml.Node, field, what string) ([]string, bool) {
 	}
 	out := make([]string, 0, len(s.Content))
 	for i, c := range s.Content {
-		v, _ := p.text(c, field+"["+strconv.Itoa(i)+"]", "a "+what+" name")
+		v, _ := p.text(c, field+"["+strconv.Itoa(i)+"]", want)
 		out = append(out, v)
 	}
 	return out, true
@@ -516,7 +562,7 @@ func (p *parser) network(root *yaml.Node) *Network {
 		Init:   Init{Scheme: GlorotUniform, Seed: 1},
 	}
 	p.mark("", root)
-	f := p.fields(root, "", "version", "name", "inputs", "hidden", "output", "penalty", "init", "train")
+	f := p.fields(root, "", "version", "name", "inputs", "missing_tokens", "hidden", "output", "penalty", "init", "train")
 	if f == nil {
 		return n
 	}
@@ -526,15 +572,24 @@ func (p *parser) network(root *yaml.Node) *Network {
 	if v, ok := f["name"]; ok {
 		n.Name, _ = p.text(v, "name", "text")
 	}
-	if v, ok := p.require(f, root, "", "inputs", "a count, or a list of feature names"); ok {
-		if names, ok := p.list(v, "inputs", "feature"); ok {
-			n.Features = names
-			n.Inputs = len(names)
-		} else if deref(v).Kind == yaml.ScalarNode {
+	if v, ok := p.require(f, root, "", "inputs", "a count, or a list of inputs"); ok {
+		switch deref(v).Kind {
+		case yaml.SequenceNode:
+			p.inputs(n, v)
+		case yaml.ScalarNode:
 			n.Inputs, _ = p.integer(v, "inputs")
-		} else {
-			p.errorf(v, "inputs", ErrType, "want a count or a list of feature names, got %s", describe(v))
+		default:
+			p.errorf(v, "inputs", ErrType, "want a count or a list of inputs (names or mappings), got %s", describe(v))
 		}
+	}
+	if v, ok := f["missing_tokens"]; ok {
+		if list, ok := p.list(v, "missing_tokens", "a missing token (text)"); ok {
+			n.MissingTokens = list
+		} else {
+			p.errorf(v, "missing_tokens", ErrType, "want a list of cell texts, got %s", describe(v))
+		}
+	} else {
+		n.MissingTokens = slices.Clone(DefaultMissingTokens)
 	}
 	if v, ok := f["hidden"]; ok {
 		p.hidden(n, v)
@@ -601,7 +656,7 @@ func (p *parser) output(n *Network, v *yaml.Node) {
 		p.errorf(second, field, ErrConflict, "give classes or units, not both")
 		p.bad["output.classes"] = true
 	case hasClasses:
-		if names, ok := p.list(cv, "output.classes", "class"); ok {
+		if names, ok := p.list(cv, "output.classes", "a class name"); ok {
 			n.Output.Classes = names
 		} else {
 			p.errorf(cv, "output.classes", ErrType, "want a list of class names, got %s", describe(cv))
@@ -699,7 +754,7 @@ func (p *parser) init(n *Network, v *yaml.Node) {
 
 func (p *parser) train(n *Network, v *yaml.Node) {
 	p.mark("train", v)
-	f := p.fields(v, "train", "optimizer", "iterations", "batch", "rate", "tolerance")
+	f := p.fields(v, "train", "optimizer", "iterations", "batch", "rate", "tolerance", "class_weights")
 	if x, ok := f["optimizer"]; ok {
 		if o, ok := parseName(p, x, "train.optimizer", "optimizer", ParseOptimizer, optimList); ok {
 			n.Train.Optimizer = o
@@ -716,5 +771,146 @@ func (p *parser) train(n *Network, v *yaml.Node) {
 	}
 	if x, ok := f["tolerance"]; ok {
 		n.Train.Tolerance, _ = p.float(x, "train.tolerance")
+	}
+	if x, ok := f["class_weights"]; ok {
+		p.classWeights(n, x)
+	}
+}
+
+// inputs reads the list of raw inputs, each a bare name (a number input)
+// or a mapping with name, type, levels, missing and unknown.
+func (p *parser) inputs(n *Network, v *yaml.Node) {
+	p.mark("inputs", v)
+	s := deref(v)
+	n.Inputs = len(s.Content)
+	n.Features = make([]string, len(s.Content))
+	n.Types = make([]Input, len(s.Content))
+	for i, c := range s.Content {
+		path := "inputs[" + strconv.Itoa(i) + "]"
+		if deref(c).Kind != yaml.MappingNode {
+			n.Features[i], _ = p.text(c, path, "an input name or a mapping with name")
+			continue
+		}
+		p.mark(path, c)
+		f := p.fields(c, path, "name", "type", "levels", "missing", "unknown")
+		if f == nil {
+			continue
+		}
+		in := &n.Types[i]
+		if x, ok := p.require(f, c, path, "name", "want the input's name"); ok {
+			var named bool
+			n.Features[i], named = p.text(x, path+".name", "an input name")
+			p.quiet[path] = !named
+			// Problems with the name (empty, duplicate) are reported
+			// under the entry's path; point them at the name.
+			p.locs[path] = loc{x.Line, x.Column, path + ".name"}
+		} else {
+			p.quiet[path] = true
+		}
+		if x, ok := f["type"]; ok {
+			t, ok := parseName(p, x, path+".type", "input type", ParseInputType, inputTypeList)
+			if _, known := ParseInputType(deref(x).Value); !ok || !known {
+				p.untyped[path] = true
+			}
+			in.Type = t
+		}
+		if x, ok := f["levels"]; ok {
+			p.levels(in, x, path+".levels")
+		}
+		if x, ok := f["missing"]; ok {
+			p.missing(in, x, path+".missing")
+		}
+		if x, ok := f["unknown"]; ok {
+			if r, ok := parseName(p, x, path+".unknown", "unknown rule", ParseUnknownRule, unknownList); ok {
+				in.Unknown = r
+			}
+		}
+	}
+}
+
+// levels reads a category's declared levels, refusing more than MaxLevels
+// before it copies them.
+func (p *parser) levels(in *Input, x *yaml.Node, field string) {
+	s := deref(x)
+	if s.Kind != yaml.SequenceNode {
+		p.mark(field, x)
+		p.errorf(x, field, ErrType, "want a list of level names, got %s", describe(x))
+		return
+	}
+	if len(s.Content) > p.lim.MaxLevels {
+		p.mark(field, x)
+		p.errorf(x, field, ErrTooLarge, "%d levels exceed the limit %d", len(s.Content), p.lim.MaxLevels)
+		return
+	}
+	in.Levels, _ = p.list(x, field, "a level name")
+}
+
+// missing reads a missing rule: a word, or a number (a constant fill).
+func (p *parser) missing(in *Input, x *yaml.Node, field string) {
+	if s := deref(x); s.Kind == yaml.ScalarNode && (s.ShortTag() == "!!int" || s.ShortTag() == "!!float") {
+		if v, ok := p.float(x, field); ok {
+			in.Missing, in.Fill = MissingConstant, v
+		}
+		return
+	}
+	word, ok := p.text(x, field, "a missing rule ("+missingList+")")
+	if !ok {
+		return
+	}
+	r, known := ParseMissingRule(word)
+	if !known {
+		hint := ""
+		if word == "constant" {
+			hint = "; write the constant itself, e.g. missing: 0"
+		}
+		p.errorf(x, field, ErrUnknownName, "unknown missing rule %q (want %s)%s", truncate(word), missingList, hint)
+		return
+	}
+	in.Missing = r
+}
+
+// classWeights reads `balanced` or a mapping of class names to weights.
+func (p *parser) classWeights(n *Network, x *yaml.Node) {
+	const field = "train.class_weights"
+	p.mark(field, x)
+	s := deref(x)
+	switch s.Kind {
+	case yaml.ScalarNode:
+		word, ok := p.text(x, field, "balanced, or a mapping of class names to weights")
+		if !ok {
+			return
+		}
+		if word != "balanced" {
+			p.errorf(x, field, ErrUnknownName, "unknown class weights %q (want balanced, or a mapping of class names to weights > 0)", truncate(word))
+			return
+		}
+		n.Train.ClassWeights.Balanced = true
+		return
+	case yaml.MappingNode:
+	default:
+		p.errorf(x, field, ErrType, "want balanced, or a mapping of class names to weights > 0, got %s", describe(x))
+		return
+	}
+	by := make(map[string]float64, len(s.Content)/2)
+	first := make(map[string]*yaml.Node, len(s.Content)/2)
+	for i := 0; i+1 < len(s.Content); i += 2 {
+		k, v := deref(s.Content[i]), s.Content[i+1]
+		if k.Kind != yaml.ScalarNode || k.ShortTag() == "!!null" {
+			p.errorf(s.Content[i], join(field, "?"), ErrType, "want a class name, got %s", describe(k))
+			continue
+		}
+		kf := weightField(k.Value)
+		if f, dup := first[k.Value]; dup {
+			p.errorf(s.Content[i], kf, ErrDuplicate, "duplicate class %q (first at line %d)", truncate(k.Value), f.Line)
+			continue
+		}
+		first[k.Value] = s.Content[i]
+		p.keys[kf] = loc{s.Content[i].Line, s.Content[i].Column, kf}
+		if w, ok := p.float(v, kf); ok {
+			by[k.Value] = w
+		}
+	}
+	if len(by) > 0 {
+		n.Train.ClassWeights.By = by
 	}
 }

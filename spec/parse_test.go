@@ -8,6 +8,9 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 func parseFile(t *testing.T, path string) (*Network, error) {
@@ -32,41 +35,83 @@ func TestParseGood(t *testing.T) {
 			Penalty: Penalty{L2: 1},
 			Init:    Init{Scheme: GlorotUniform, Scale: 0.1, Seed: 7},
 			Train:   Train{Optimizer: LBFGS, Iterations: 400, Rate: 0.01, Tolerance: 1e-6},
+			// Parse sets the default missing tokens when the spec has none.
+			MissingTokens: DefaultMissingTokens,
 		}},
 		{"units.yaml", &Network{
 			Version: 1, Inputs: 4,
-			Output: Output{Classes: []string{"0", "1", "2"}, Activation: Softmax},
-			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+			Output:        Output{Classes: []string{"0", "1", "2"}, Activation: Softmax},
+			Init:          Init{Scheme: GlorotUniform, Seed: 1},
+			MissingTokens: DefaultMissingTokens,
 		}},
 		{"features.yaml", &Network{
 			Version: 1, Name: "2024", Inputs: 4,
 			Features: []string{"age", "bytes", "path depth", "true"},
-			Hidden:   []Layer{{8, LeakyReLU}},
-			Output:   Output{Classes: []string{"ok", "spam"}, Activation: Sigmoid},
-			Init:     Init{Scheme: HeUniform, Seed: 1<<64 - 1},
-			Train:    Train{Optimizer: Adam, Batch: 32, Rate: 1e-3},
+			// Bare names are plain number inputs.
+			Types:         make([]Input, 4),
+			MissingTokens: DefaultMissingTokens,
+			Hidden:        []Layer{{8, LeakyReLU}},
+			Output:        Output{Classes: []string{"ok", "spam"}, Activation: Sigmoid},
+			Init:          Init{Scheme: HeUniform, Seed: 1<<64 - 1},
+			Train:         Train{Optimizer: Adam, Batch: 32, Rate: 1e-3},
 		}},
 		{"multilabel.yaml", &Network{
 			// 0x10, 1_000 and 1e2 are integers in the forms the YAML
 			// decoder resolves (hex, underscores, whole float).
 			Version: 1, Inputs: 16,
-			Hidden:  []Layer{{5, Softplus}, {1000, Identity}, {100, Sigmoid}},
-			Output:  Output{Classes: []string{"urgent"}, Activation: Sigmoid, Multilabel: true},
-			Penalty: Penalty{L2: 0.5, L1: 2, Bias: true},
-			Init:    Init{Scheme: Uniform, Scale: 0.05, Seed: 0},
-			Train:   Train{Optimizer: Momentum, Iterations: 10},
+			Hidden:        []Layer{{5, Softplus}, {1000, Identity}, {100, Sigmoid}},
+			Output:        Output{Classes: []string{"urgent"}, Activation: Sigmoid, Multilabel: true},
+			Penalty:       Penalty{L2: 0.5, L1: 2, Bias: true},
+			Init:          Init{Scheme: Uniform, Scale: 0.05, Seed: 0},
+			Train:         Train{Optimizer: Momentum, Iterations: 10},
+			MissingTokens: DefaultMissingTokens,
 		}},
 		{"anchors.yaml", &Network{
 			Version: 1, Inputs: 3,
-			Hidden: []Layer{{4, ReLU}, {4, ReLU}},
-			Output: Output{Classes: []string{"a", "b", "c"}, Activation: Softmax},
-			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+			Hidden:        []Layer{{4, ReLU}, {4, ReLU}},
+			Output:        Output{Classes: []string{"a", "b", "c"}, Activation: Softmax},
+			Init:          Init{Scheme: GlorotUniform, Seed: 1},
+			MissingTokens: DefaultMissingTokens,
 		}},
 		{"crlf.yaml", &Network{
 			// yes and no are strings in YAML 1.2 (only true/false are booleans).
 			Version: 1, Inputs: 2,
-			Output: Output{Classes: []string{"yes", "no"}, Activation: Sigmoid},
-			Init:   Init{Scheme: GlorotUniform, Seed: 1},
+			Output:        Output{Classes: []string{"yes", "no"}, Activation: Sigmoid},
+			Init:          Init{Scheme: GlorotUniform, Seed: 1},
+			MissingTokens: DefaultMissingTokens,
+		}},
+		{"typed.yaml", &Network{
+			Version: 1, Name: "churn", Inputs: 7,
+			Features: []string{"req_per_min", "plan", "tenure", "region", "seats", "tier", "score"},
+			Types: []Input{
+				{},
+				{Type: CategoryInput, Levels: []string{"basic", "pro", "team"}},
+				{Missing: MissingMedian},
+				{Type: CategoryInput, Missing: MissingLevel, Unknown: UnknownIgnore},
+				{Missing: MissingConstant, Fill: -1.5},
+				{Type: CategoryInput, Missing: MissingMode},
+				{Missing: MissingMean},
+			},
+			MissingTokens: []string{"", "?", "n/a", "NULL_"},
+			Hidden:        []Layer{{8, ReLU}},
+			Output:        Output{Classes: []string{"stays", "leaves"}, Activation: Sigmoid},
+			Init:          Init{Scheme: GlorotUniform, Seed: 1},
+			Train:         Train{ClassWeights: ClassWeights{By: map[string]float64{"leaves": 20, "stays": 0.5}}},
+		}},
+		{"balanced.yaml", &Network{
+			Version: 1, Inputs: 3,
+			Features: []string{"method", "status", "size"},
+			Types: []Input{
+				{Type: CategoryInput, Levels: []string{"GET", "POST"}},
+				// Quoted '200' is the text "200"; levels are names.
+				{Type: CategoryInput, Levels: []string{"200", "404", "500"}, Unknown: UnknownIgnore},
+				// missing: 0 is the constant 0, not "not set".
+				{Missing: MissingConstant},
+			},
+			MissingTokens: []string{},
+			Output:        Output{Classes: []string{"0", "1", "2"}, Activation: Softmax},
+			Init:          Init{Scheme: GlorotUniform, Seed: 1},
+			Train:         Train{Optimizer: Adam, ClassWeights: ClassWeights{Balanced: true}},
 		}},
 	}
 	for _, tt := range tests {
@@ -112,14 +157,15 @@ var badTests = []badTest{
 	{"duplicate nested key", head + "output: {units: 2, units: 3}\n", 3, 20, "output.units", ErrDuplicate, "duplicate key"},
 	{"missing version", "inputs: 2\noutput: {units: 2}\n", 1, 1, "version", ErrMissingField, "missing key version"},
 	{"missing inputs", "version: 1\noutput: {units: 2}\n", 1, 1, "inputs", ErrMissingField, "missing key inputs"},
-	{"null inputs", "version: 1\ninputs:\noutput: {units: 2}\n", 1, 1, "inputs", ErrMissingField, "missing key inputs"},
+	{"null inputs", "version: 1\ninputs:\noutput: {units: 2}\n", 2, 8, "inputs", ErrMissingField, "key inputs has no value (a count, or a list of inputs)"},
+	{"tilde inputs", "version: 1\ninputs: ~\noutput: {units: 2}\n", 2, 9, "inputs", ErrMissingField, "key inputs has no value"},
 	{"missing output", head, 1, 1, "output", ErrMissingField, "missing key output"},
 	{"missing classes", head + "output:\n  activation: softmax\n", 4, 3, "output.classes", ErrMissingField, "missing classes or units"},
 	{"classes and units", head + "output:\n  classes: [a, b]\n  units: 2\n", 5, 10, "output.units", ErrConflict, "not both"},
 	{"missing units", head + "hidden:\n  - activation: relu\noutput: {units: 2}\n", 4, 5, "hidden[0].units", ErrMissingField, "missing key units"},
 	{"missing hidden activation", head + "hidden:\n  - units: 3\noutput: {units: 2}\n", 4, 5, "hidden[0].activation", ErrMissingField, "want one of sigmoid, tanh"},
 	{"version string", "version: one\ninputs: 2\noutput: {units: 2}\n", 1, 10, "version", ErrType, `want an integer, got "one"`},
-	{"inputs mapping", "version: 1\ninputs: {a: 1}\noutput: {units: 2}\n", 2, 9, "inputs", ErrType, "want a count or a list of feature names"},
+	{"inputs mapping", "version: 1\ninputs: {a: 1}\noutput: {units: 2}\n", 2, 9, "inputs", ErrType, "want a count or a list of inputs (names or mappings), got a mapping"},
 	{"inputs fraction", "version: 1\ninputs: 2.5\noutput: {units: 2}\n", 2, 9, "inputs", ErrType, "want an integer, got number 2.5"},
 	{"hidden not list", head + "hidden: 3\noutput: {units: 2}\n", 3, 9, "hidden", ErrType, "want a list of layers"},
 	{"layer not mapping", head + "hidden: [3]\noutput: {units: 2}\n", 3, 10, "hidden[0]", ErrType, "want a mapping, got integer 3"},
@@ -181,6 +227,53 @@ var badTests = []badTest{
 	{"param limit at output", "version: 1\ninputs: 50000\nhidden: [{units: 999, activation: relu}]\noutput: {units: 1000}\n",
 		4, 17, "output.units", ErrTooLarge, "param count exceeds the limit"},
 
+	// Typed inputs (issue 10).
+	{"input type unknown", "version: 1\ninputs:\n  - {name: plan, type: text}\noutput: {units: 2}\n", 3, 24, "inputs[0].type", ErrUnknownName, `unknown input type "text" (want one of number, category)`},
+	{"input type unknown with levels", "version: 1\ninputs:\n  - {name: plan, type: cat, levels: [a, b]}\noutput: {units: 2}\n", 3, 24, "inputs[0].type", ErrUnknownName, `unknown input type "cat"`},
+	{"category one level", "version: 1\ninputs:\n  - name: plan\n    type: category\n    levels: [basic]\noutput: {units: 2}\n", 5, 13, "inputs[0].levels", ErrRange, "a category needs at least 2 levels, got 1"},
+	{"category no levels", "version: 1\ninputs:\n  - {name: plan, type: category, levels: []}\noutput: {units: 2}\n", 3, 42, "inputs[0].levels", ErrRange, "at least 2 levels, got 0"},
+	{"duplicate level", "version: 1\ninputs:\n  - name: plan\n    type: category\n    levels: [a, b, a]\noutput: {units: 2}\n", 5, 20, "inputs[0].levels[2]", ErrDuplicate, `duplicate level "a" (also inputs[0].levels[0])`},
+	{"empty level", "version: 1\ninputs:\n  - {name: plan, type: category, levels: [a, '']}\noutput: {units: 2}\n", 3, 46, "inputs[0].levels[1]", ErrRange, "empty level name"},
+	{"level with spaces", "version: 1\ninputs:\n  - {name: plan, type: category, levels: [a, ' b']}\noutput: {units: 2}\n", 3, 46, "inputs[0].levels[1]", ErrRange, `level " b" has surrounding spaces`},
+	{"level null", "version: 1\ninputs:\n  - {name: plan, type: category, levels: [a, ~]}\noutput: {units: 2}\n", 3, 46, "inputs[0].levels[1]", ErrType, "want a level name, got null"},
+	{"levels scalar", "version: 1\ninputs:\n  - {name: plan, type: category, levels: a}\noutput: {units: 2}\n", 3, 42, "inputs[0].levels", ErrType, `want a list of level names, got "a"`},
+	{"levels on a number", "version: 1\ninputs:\n  - {name: plan, levels: [a, b]}\noutput: {units: 2}\n", 3, 26, "inputs[0].levels", ErrConflict, "levels are for a category input (add type: category)"},
+	{"missing unknown word", "version: 1\ninputs:\n  - name: tenure\n    missing: average\noutput: {units: 2}\n", 4, 14, "inputs[0].missing", ErrUnknownName, `unknown missing rule "average" (want refuse, mean, median, mode or a number`},
+	{"missing constant word", "version: 1\ninputs:\n  - {name: tenure, missing: constant}\noutput: {units: 2}\n", 3, 29, "inputs[0].missing", ErrUnknownName, "write the constant itself, e.g. missing: 0"},
+	{"missing list", "version: 1\ninputs:\n  - {name: tenure, missing: [1]}\noutput: {units: 2}\n", 3, 29, "inputs[0].missing", ErrType, "want a missing rule (refuse, mean"},
+	{"missing constant on a category", "version: 1\ninputs:\n  - name: plan\n    type: category\n    missing: 3\noutput: {units: 2}\n", 5, 14, "inputs[0].missing", ErrConflict, "a constant fill (3) is for a number input (a category takes refuse, level or mode)"},
+	{"missing mean on a category", "version: 1\ninputs:\n  - {name: plan, type: category, missing: mean}\noutput: {units: 2}\n", 3, 43, "inputs[0].missing", ErrConflict, "missing: mean is for a number input"},
+	{"missing level on a number", "version: 1\ninputs:\n  - name: tenure\n    missing: level\noutput: {units: 2}\n", 4, 14, "inputs[0].missing", ErrConflict, "missing: level is for a category input (a number takes refuse, mean, median, mode or a constant)"},
+	{"missing nan", "version: 1\ninputs:\n  - {name: tenure, missing: .nan}\noutput: {units: 2}\n", 3, 29, "inputs[0].missing", ErrRange, "want a finite fill value, got NaN"},
+	{"unknown on a number", "version: 1\ninputs:\n  - name: tenure\n    unknown: ignore\noutput: {units: 2}\n", 4, 14, "inputs[0].unknown", ErrConflict, "unknown is for a category input"},
+	{"unknown rule word", "version: 1\ninputs:\n  - {name: plan, type: category, unknown: skip}\noutput: {units: 2}\n", 3, 43, "inputs[0].unknown", ErrUnknownName, `unknown unknown rule "skip" (want one of refuse, ignore)`},
+	{"input key unknown", "version: 1\ninputs:\n  - {name: plan, kind: category}\noutput: {units: 2}\n", 3, 18, "inputs[0].kind", ErrUnknownField, "want one of name, type, levels, missing, unknown"},
+	{"input without name", "version: 1\ninputs:\n  - a\n  - type: category\noutput: {units: 2}\n", 4, 5, "inputs[1].name", ErrMissingField, "missing key name"},
+	{"input name null", "version: 1\ninputs:\n  - {name: ~, type: category}\noutput: {units: 2}\n", 3, 12, "inputs[0].name", ErrMissingField, "key name has no value"},
+	{"input name list", "version: 1\ninputs:\n  - {name: [a]}\noutput: {units: 2}\n", 3, 12, "inputs[0].name", ErrType, "want an input name, got a list"},
+	{"input entry null", "version: 1\ninputs: [a, ~]\noutput: {units: 2}\n", 2, 13, "inputs[1]", ErrType, "want an input name or a mapping with name, got null"},
+	{"input entry list", "version: 1\ninputs: [a, [b]]\noutput: {units: 2}\n", 2, 13, "inputs[1]", ErrType, "got a list"},
+	{"duplicate input name", "version: 1\ninputs:\n  - plan\n  - name: plan\n    type: category\noutput: {units: 2}\n", 4, 11, "inputs[1].name", ErrDuplicate, `duplicate feature name "plan" (also inputs[0])`},
+	{"token is a level", "version: 1\ninputs:\n  - name: answer\n    type: category\n    levels: [yes, NA, no]\noutput: {units: 2}\n", 5, 19, "inputs[0].levels[1]", ErrConflict, `level "NA" is also a missing token`},
+	{"declared token is a level", "version: 1\ninputs:\n  - {name: answer, type: category, levels: [yes, no, '-']}\nmissing_tokens: ['-']\noutput: {units: 2}\n", 3, 54, "inputs[0].levels[2]", ErrConflict, `level "-" is also a missing token`},
+	{"duplicate token", head + "missing_tokens: ['?', NA, '?']\noutput: {units: 2}\n", 3, 27, "missing_tokens[2]", ErrDuplicate, `duplicate missing token "?" (also missing_tokens[0])`},
+	{"token with spaces", head + "missing_tokens: [' NA']\noutput: {units: 2}\n", 3, 18, "missing_tokens[0]", ErrRange, "has surrounding spaces"},
+	{"token null", head + "missing_tokens: [NA, ~]\noutput: {units: 2}\n", 3, 22, "missing_tokens[1]", ErrType, "want a missing token (text), got null"},
+	{"tokens scalar", head + "missing_tokens: NA\noutput: {units: 2}\n", 3, 17, "missing_tokens", ErrType, `want a list of cell texts, got "NA"`},
+
+	// Class weights (issue 11).
+	{"class weight unknown class", head + "output: {classes: [ok, fraud]}\ntrain:\n  class_weights: {ok: 1, frod: 20}\n", 5, 26, "train.class_weights.frod", ErrUnknownName, `unknown class "frod" (want one of the output classes: ok, fraud)`},
+	{"class weight zero", head + "output: {classes: [ok, fraud]}\ntrain:\n  class_weights:\n    fraud: 0\n", 6, 12, "train.class_weights.fraud", ErrRange, "want a weight > 0, got 0"},
+	{"class weight negative", head + "output: {classes: [ok, fraud]}\ntrain:\n  class_weights:\n    fraud: -2\n", 6, 12, "train.class_weights.fraud", ErrRange, "want a weight > 0, got -2"},
+	{"class weight inf", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: {fraud: .inf}}\n", 4, 32, "train.class_weights.fraud", ErrRange, "want a finite weight > 0, got +Inf"},
+	{"class weight text", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: {fraud: high}}\n", 4, 32, "train.class_weights.fraud", ErrType, `want a number, got "high"`},
+	{"class weight null", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: {fraud: ~}}\n", 4, 32, "train.class_weights.fraud", ErrType, "want a number, got null"},
+	{"class weights unknown word", head + "output: {classes: [ok, fraud]}\ntrain:\n  class_weights: balance\n", 5, 18, "train.class_weights", ErrUnknownName, `unknown class weights "balance" (want balanced, or a mapping`},
+	{"class weights list", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: [1, 20]}\n", 4, 24, "train.class_weights", ErrType, "got a list"},
+	{"class weight duplicate", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: {fraud: 2, fraud: 3}}\n", 4, 35, "train.class_weights.fraud", ErrDuplicate, `duplicate class "fraud"`},
+	{"class weight quoted name", head + "output: {classes: [ok, fraud]}\ntrain: {class_weights: {'fraud.x': 2}}\n", 4, 25, `train.class_weights["fraud.x"]`, ErrUnknownName, `unknown class "fraud.x"`},
+	{"class weight numbered", head + "output: {units: 2}\ntrain: {class_weights: {2: 5}}\n", 4, 25, "train.class_weights.2", ErrUnknownName, "want one of the output classes: 0, 1"},
+
 	// Syntax.
 	{"tab indent", head + "output:\n\tunits: 2\n", 4, 1, "", ErrSyntax, "tab character in indentation"},
 	{"tab after spaces", head + "output:\n  units: 2\n \tactivation: softmax\n", 5, 2, "", ErrSyntax, "tab character in indentation"},
@@ -230,6 +323,15 @@ func TestParseBadFiles(t *testing.T) {
 		{"tab.yaml", 4, 1, "", ErrSyntax},
 		{"duplicate.yaml", 5, 1, "inputs", ErrDuplicate},
 		{"huge_units.yaml", 4, 12, "hidden[0].units", ErrTooLarge},
+		{"null_inputs.yaml", 2, 9, "inputs", ErrMissingField},
+		{"one_level.yaml", 6, 13, "inputs[1].levels", ErrRange},
+		{"duplicate_levels.yaml", 5, 32, "inputs[0].levels[3]", ErrDuplicate},
+		{"missing_word.yaml", 4, 14, "inputs[0].missing", ErrUnknownName},
+		{"missing_constant_category.yaml", 5, 14, "inputs[0].missing", ErrConflict},
+		{"token_level.yaml", 5, 20, "inputs[0].levels[2]", ErrConflict},
+		{"class_weights_word.yaml", 6, 18, "train.class_weights", ErrUnknownName},
+		// 31 + 311 + … bytes per nested list: the third *l4 passes 1 MiB.
+		{"alias_bomb.yaml", 11, 20, "", ErrTooLarge},
 	}
 	for _, tt := range tests {
 		t.Run(tt.file, func(t *testing.T) {
@@ -284,6 +386,38 @@ func TestParseSeveral(t *testing.T) {
 		if !errors.Is(err, kind) {
 			t.Errorf("errors.Is(list, %v) = false", kind)
 		}
+	}
+}
+
+// TestParseSeveralTyped checks that the problems of typed inputs and class
+// weights are all reported in one pass, each once, at its key or value.
+func TestParseSeveralTyped(t *testing.T) {
+	_, err := parseFile(t, filepath.Join("testdata", "bad", "typed_several.yaml"))
+	var list ErrorList
+	require.ErrorAs(t, err, &list)
+	want := []struct {
+		line, col int
+		field     string
+		kind      error
+	}{
+		{4, 11, "inputs[0].type", ErrUnknownName},
+		{7, 13, "inputs[1].levels", ErrRange},
+		{10, 20, "inputs[2].levels[2]", ErrDuplicate},
+		{12, 14, "inputs[3].missing", ErrUnknownName},
+		{15, 14, "inputs[4].missing", ErrConflict},
+		{17, 14, "inputs[5].missing", ErrConflict},
+		{18, 14, "inputs[5].unknown", ErrConflict},
+		{20, 13, "inputs[6].levels", ErrConflict},
+		{23, 17, "inputs[7].levels[1]", ErrConflict},
+		{28, 5, "train.class_weights.frod", ErrUnknownName}, // at the key
+		{29, 9, "train.class_weights.ok", ErrRange},         // at the value
+		{30, 12, "train.class_weights.fraud", ErrRange},
+	}
+	require.Len(t, list, len(want), "%v", err)
+	for i, w := range want {
+		e := list[i]
+		assert.Equal(t, []any{w.line, w.col, w.field}, []any{e.Line, e.Column, e.Field}, "problem %d: %v", i, e)
+		assert.ErrorIs(t, e, w.kind, "problem %d", i)
 	}
 }
 

@@ -123,6 +123,16 @@ func (t InputType) String() string {
 	return fmt.Sprintf("InputType(%d)", int(t))
 }
 
+// ParseInputType returns the input type with the given spec name.
+func ParseInputType(name string) (InputType, bool) {
+	for i, n := range inputTypeNames {
+		if n == name {
+			return InputType(i), true
+		}
+	}
+	return 0, false
+}
+
 // MissingRule says what fills a missing cell of an input. The zero value,
 // MissingRefuse, makes a missing cell an error.
 type MissingRule int
@@ -131,7 +141,7 @@ const (
 	MissingRefuse   MissingRule = iota // a missing cell is an error (the default)
 	MissingMean                        // number: the mean of the training rows' values
 	MissingMedian                      // number: the median of the training rows' values
-	MissingMode                        // number or category: the most frequent training value (the smallest on ties)
+	MissingMode                        // number or category: the most frequent training value (on ties the smallest number, or the first level in level order)
 	MissingConstant                    // number: Input.Fill
 	MissingLevel                       // category: a unit of its own, after the levels' units
 )
@@ -145,6 +155,18 @@ func (r MissingRule) String() string {
 		return missingNames[r]
 	}
 	return fmt.Sprintf("MissingRule(%d)", int(r))
+}
+
+// ParseMissingRule returns the missing rule with the given spec word:
+// refuse, mean, median, mode or level. "constant" is not a spec word (the
+// spec writes the constant itself), so it is not accepted.
+func ParseMissingRule(word string) (MissingRule, bool) {
+	for i, n := range missingNames {
+		if n == word && MissingRule(i) != MissingConstant {
+			return MissingRule(i), true
+		}
+	}
+	return 0, false
 }
 
 // UnknownRule says what a category level never seen in training does at
@@ -166,6 +188,16 @@ func (r UnknownRule) String() string {
 	return fmt.Sprintf("UnknownRule(%d)", int(r))
 }
 
+// ParseUnknownRule returns the unknown rule with the given spec word.
+func ParseUnknownRule(word string) (UnknownRule, bool) {
+	for i, n := range unknownNames {
+		if n == word {
+			return UnknownRule(i), true
+		}
+	}
+	return 0, false
+}
+
 // Input is the type and rules of one raw input. Its zero value is a number
 // input that refuses missing cells, which is what a bare name in `inputs`
 // means.
@@ -178,6 +210,13 @@ type Input struct {
 	Missing MissingRule
 	Fill    float64     // the constant of MissingConstant; 0 otherwise
 	Unknown UnknownRule // category only
+}
+
+// IsZero reports whether in is the zero Input: a number that refuses
+// missing cells, written in a spec as a bare name.
+func (in Input) IsZero() bool {
+	return in.Type == NumberInput && in.Levels == nil && in.Missing == MissingRefuse &&
+		in.Fill == 0 && in.Unknown == UnknownRefuse
 }
 
 // Units returns the number of input units of in: 1 for a number, and for a
@@ -214,6 +253,8 @@ type Network struct {
 	Types []Input
 	// MissingTokens are the cell texts (after trimming spaces) that count
 	// as missing; Parse sets DefaultMissingTokens when the spec has none.
+	// nil (in a Network built in Go) also means DefaultMissingTokens; an
+	// empty non-nil list means that no cell counts as missing.
 	MissingTokens []string
 	Hidden        []Layer // hidden layers, input side first; nil when there are none (Parse never returns an empty non-nil slice)
 	Output        Output
@@ -281,6 +322,28 @@ type Train struct {
 type ClassWeights struct {
 	Balanced bool
 	By       map[string]float64
+}
+
+// Input returns the type and rules of raw input i: Types[i], or the zero
+// Input (a plain number) when Types is nil. It panics if i is not in
+// [0, Inputs).
+func (n *Network) Input(i int) Input {
+	if i < 0 || i >= n.Inputs {
+		panic(fmt.Sprintf("spec: input %d of %d", i, n.Inputs))
+	}
+	if n.Types == nil {
+		return Input{}
+	}
+	return n.Types[i]
+}
+
+// MissingTokensOrDefault returns MissingTokens, or DefaultMissingTokens
+// when it is nil. The caller must not modify the result.
+func (n *Network) MissingTokensOrDefault() []string {
+	if n.MissingTokens == nil {
+		return DefaultMissingTokens
+	}
+	return n.MissingTokens
 }
 
 // Set reports whether any class weight other than 1 is asked for.

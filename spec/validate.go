@@ -2,7 +2,9 @@ package spec
 
 import (
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -12,6 +14,7 @@ const (
 	DefaultMaxBytes   = 1 << 20    // largest spec file read, in bytes (1 MiB)
 	DefaultMaxParams  = 50_000_000 // largest param count of a network
 	DefaultMaxClasses = 1 << 16    // most output classes
+	DefaultMaxLevels  = 1 << 16    // most declared levels of one category input
 )
 
 // Limits bounds what Parse accepts. A zero or negative field means its
@@ -20,6 +23,7 @@ type Limits struct {
 	MaxBytes   int64 // bytes read from the spec; default DefaultMaxBytes
 	MaxParams  int   // params of the network, Σ_l (n_{l−1}+1)·n_l; default DefaultMaxParams
 	MaxClasses int   // output classes, also bounds `units:` before names are made; default DefaultMaxClasses
+	MaxLevels  int   // declared levels of each category input, checked before they are copied; default DefaultMaxLevels
 }
 
 func (l Limits) withDefaults() Limits {
@@ -32,6 +36,9 @@ func (l Limits) withDefaults() Limits {
 	if l.MaxClasses <= 0 {
 		l.MaxClasses = DefaultMaxClasses
 	}
+	if l.MaxLevels <= 0 {
+		l.MaxLevels = DefaultMaxLevels
+	}
 	return l
 }
 
@@ -40,6 +47,12 @@ const (
 	outputNames = "softmax, sigmoid"
 	schemeList  = "glorot-uniform, he-uniform, uniform"
 	optimList   = "gd, cg, lbfgs, momentum, adam"
+
+	inputTypeList = "number, category"
+	unknownList   = "refuse, ignore"
+	missingList   = "refuse, mean, median, mode or a number for a number input; refuse, level or mode for a category"
+	numberMissing = "refuse, mean, median, mode or a constant"
+	catMissing    = "refuse, level or mode"
 )
 
 // Validate checks n with the default Limits and returns nil, an *Error or
@@ -97,6 +110,33 @@ func (n *Network) check(lim Limits) []*Error {
 			add("inputs", ErrRange, "%d feature names for %d inputs", len(n.Features), n.Inputs)
 		}
 		names(&errs, n.Features, "inputs", "feature")
+	}
+	switch {
+	case n.Types == nil:
+	case n.Features == nil:
+		add("inputs", ErrConflict, "input types need input names (Types is set, Features is nil)")
+		sizesOK = false
+	case len(n.Types) != n.Inputs:
+		add("inputs", ErrRange, "%d input types for %d inputs", len(n.Types), n.Inputs)
+		sizesOK = false
+	}
+	errs = append(errs, n.checkTokens()...)
+	if n.Types != nil {
+		tokens := make(map[string]bool)
+		for _, t := range n.MissingTokensOrDefault() {
+			tokens[t] = true
+		}
+		for i, in := range n.Types {
+			errs = append(errs, in.check("inputs["+strconv.Itoa(i)+"]", tokens, lim)...)
+		}
+		if sizesOK {
+			// Each width is at most MaxLevels+1 and there are at most
+			// MaxParams of them, so the sum cannot overflow.
+			if w := n.Sizes()[0]; w > lim.MaxParams {
+				add("inputs", ErrTooLarge, "%d input units exceed the param limit %d", w, lim.MaxParams)
+				sizesOK = false
+			}
+		}
 	}
 
 	for i, h := range n.Hidden {
@@ -168,6 +208,7 @@ func (n *Network) check(lim Limits) []*Error {
 	}
 	finite("train.rate", t.Rate)
 	finite("train.tolerance", t.Tolerance)
+	errs = append(errs, t.ClassWeights.check(o.Classes)...)
 
 	if sizesOK {
 		if field, c, ok := paramCheck(n, lim.MaxParams); !ok {
@@ -234,4 +275,155 @@ func plural(n int, one, many string) string {
 		return one
 	}
 	return many
+}
+
+// checkTokens reports missing tokens with surrounding spaces (cells are
+// trimmed before they are compared, so such a token never matches) and
+// repeated ones.
+func (n *Network) checkTokens() []*Error {
+	var errs []*Error
+	seen := make(map[string]int, len(n.MissingTokens))
+	for i, t := range n.MissingTokens {
+		field := "missing_tokens[" + strconv.Itoa(i) + "]"
+		if strings.TrimSpace(t) != t {
+			errs = append(errs, &Error{Field: field, Err: newDetail(ErrRange,
+				"missing token %q has surrounding spaces (cells are trimmed before they are compared)", truncate(t))})
+			continue
+		}
+		if j, dup := seen[t]; dup {
+			errs = append(errs, &Error{Field: field, Err: newDetail(ErrDuplicate,
+				"duplicate missing token %q (also missing_tokens[%d])", truncate(t), j)})
+			continue
+		}
+		seen[t] = i
+	}
+	return errs
+}
+
+// check returns the problems of one input at key path path: values out of
+// range, declared levels (count, names, collisions with the missing
+// tokens) and rules that do not fit the input's type (ErrConflict).
+func (in Input) check(path string, tokens map[string]bool, lim Limits) []*Error {
+	var errs []*Error
+	add := func(field string, kind error, format string, args ...any) {
+		errs = append(errs, &Error{Field: path + field, Err: newDetail(kind, format, args...)})
+	}
+	typed := true
+	if in.Type != NumberInput && in.Type != CategoryInput {
+		add(".type", ErrRange, "unknown input type %v (want one of %s)", in.Type, inputTypeList)
+		typed = false
+	}
+	cat := in.Type == CategoryInput
+
+	if in.Levels != nil {
+		k := len(in.Levels)
+		switch {
+		case typed && !cat:
+			add(".levels", ErrConflict, "levels are for a category input (add type: category)")
+		case k > lim.MaxLevels:
+			add(".levels", ErrTooLarge, "%d levels exceed the limit %d", k, lim.MaxLevels)
+		case k < 2:
+			add(".levels", ErrRange, "a category needs at least 2 levels, got %d (one level carries no information)", k)
+		}
+		if k <= lim.MaxLevels {
+			seen := make(map[string]int, k)
+			for j, l := range in.Levels {
+				field := ".levels[" + strconv.Itoa(j) + "]"
+				switch {
+				case strings.TrimSpace(l) == "":
+					add(field, ErrRange, "empty level name")
+				case strings.TrimSpace(l) != l:
+					add(field, ErrRange, "level %q has surrounding spaces (cells are trimmed before they are compared)", truncate(l))
+				case tokens[l]:
+					add(field, ErrConflict, "level %q is also a missing token (rename the level, or set missing_tokens without it)", truncate(l))
+				default:
+					if i, dup := seen[l]; dup {
+						add(field, ErrDuplicate, "duplicate level %q (also %s.levels[%d])", truncate(l), path, i)
+					} else {
+						seen[l] = j
+					}
+				}
+			}
+		}
+	}
+
+	switch r := in.Missing; {
+	case r < MissingRefuse || r > MissingLevel:
+		add(".missing", ErrRange, "unknown missing rule %v (want one of %s)", r, missingList)
+	case !typed:
+	case cat && r == MissingConstant:
+		add(".missing", ErrConflict, "a constant fill (%v) is for a number input (a category takes %s)", in.Fill, catMissing)
+	case cat && (r == MissingMean || r == MissingMedian):
+		add(".missing", ErrConflict, "missing: %v is for a number input (a category takes %s)", r, catMissing)
+	case !cat && r == MissingLevel:
+		add(".missing", ErrConflict, "missing: level is for a category input (a number takes %s)", numberMissing)
+	}
+	switch {
+	case math.IsNaN(in.Fill) || math.IsInf(in.Fill, 0):
+		add(".missing", ErrRange, "want a finite fill value, got %v", in.Fill)
+	case in.Fill != 0 && in.Missing != MissingConstant:
+		add(".missing", ErrConflict, "fill value %v without the constant rule (Missing is %v)", in.Fill, in.Missing)
+	}
+
+	switch {
+	case in.Unknown != UnknownRefuse && in.Unknown != UnknownIgnore:
+		add(".unknown", ErrRange, "unknown rule %v for unseen levels (want one of %s)", in.Unknown, unknownList)
+	case typed && !cat && in.Unknown != UnknownRefuse:
+		add(".unknown", ErrConflict, "unknown is for a category input (a number has no levels)")
+	}
+	return errs
+}
+
+// check returns the problems of the class weights for an output with the
+// given classes, in a fixed order (by class name).
+func (c ClassWeights) check(classes []string) []*Error {
+	var errs []*Error
+	if c.Balanced && len(c.By) > 0 {
+		errs = append(errs, &Error{Field: "train.class_weights", Err: newDetail(ErrConflict,
+			"give balanced or weights by class, not both")})
+	}
+	known := make(map[string]bool, len(classes))
+	for _, k := range classes {
+		known[k] = true
+	}
+	for _, name := range slices.Sorted(maps.Keys(c.By)) {
+		field := weightField(name)
+		if !known[name] {
+			errs = append(errs, &Error{Field: field, Err: newDetail(ErrUnknownName,
+				"unknown class %q (want one of the output classes: %s)", truncate(name), listSome(classes, 10))})
+		}
+		switch w := c.By[name]; {
+		case math.IsNaN(w) || math.IsInf(w, 0):
+			errs = append(errs, &Error{Field: field, Err: newDetail(ErrRange, "want a finite weight > 0, got %v", w)})
+		case w <= 0:
+			errs = append(errs, &Error{Field: field, Err: newDetail(ErrRange, "want a weight > 0, got %v", w)})
+		}
+	}
+	return errs
+}
+
+// weightField is the key path of the class weight of class name:
+// train.class_weights.NAME, or train.class_weights["NAME"] when the name
+// is not a plain word (letters, digits, '-' and '_').
+func weightField(name string) string {
+	plainWord := name != ""
+	for _, r := range name {
+		if !(r == '-' || r == '_' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z') {
+			plainWord = false
+			break
+		}
+	}
+	if plainWord {
+		return "train.class_weights." + name
+	}
+	return "train.class_weights[" + strconv.Quote(truncate(name)) + "]"
+}
+
+// listSome joins the first max entries of list, and says how many more
+// there are.
+func listSome(list []string, max int) string {
+	if len(list) <= max {
+		return strings.Join(list, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(list[:max], ", "), len(list)-max)
 }

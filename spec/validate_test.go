@@ -7,6 +7,9 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 func valid() *Network {
@@ -44,6 +47,46 @@ func TestValidate(t *testing.T) {
 		{"nan scale", func(n *Network) { n.Init.Scale = math.NaN() }, []string{"init.scale"}, []error{ErrRange}},
 		{"inf l2", func(n *Network) { n.Penalty.L2 = math.Inf(1) }, []string{"penalty.l2"}, []error{ErrRange}},
 		{"huge units", func(n *Network) { n.Hidden[0].Units = math.MaxInt }, []string{"hidden[0].units"}, []error{ErrTooLarge}},
+		{"typed", func(n *Network) {
+			n.Features = []string{"x", "plan", "region"}
+			n.Types = []Input{{Missing: MissingConstant, Fill: -2}, {Type: CategoryInput, Levels: []string{"a", "b"}},
+				{Type: CategoryInput, Missing: MissingLevel, Unknown: UnknownIgnore}}
+			n.MissingTokens = []string{}
+			n.Train.ClassWeights.By = map[string]float64{"b": 3}
+		}, nil, nil},
+		{"types without features", func(n *Network) { n.Types = make([]Input, 3) }, []string{"inputs"}, []error{ErrConflict}},
+		{"types length", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = make([]Input, 2)
+		}, []string{"inputs"}, []error{ErrRange}},
+		{"input out of range", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = []Input{{Type: 2}, {Missing: 6}, {Type: CategoryInput, Unknown: -1}}
+		}, []string{"inputs[0].type", "inputs[1].missing", "inputs[2].unknown"}, []error{ErrRange, ErrRange, ErrRange}},
+		{"fill without constant", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = []Input{{Missing: MissingMean, Fill: 1}, {Missing: MissingConstant, Fill: math.Inf(-1)}, {}}
+		}, []string{"inputs[0].missing", "inputs[1].missing"}, []error{ErrConflict, ErrRange}},
+		{"empty levels given", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = []Input{{Type: CategoryInput, Levels: []string{}}, {}, {}}
+		}, []string{"inputs[0].levels"}, []error{ErrRange}},
+		{"nil tokens are the default", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = []Input{{Type: CategoryInput, Levels: []string{"?", "ok"}}, {}, {}}
+		}, []string{"inputs[0].levels[0]"}, []error{ErrConflict}},
+		{"empty tokens collide with nothing", func(n *Network) {
+			n.Features = []string{"x", "y", "z"}
+			n.Types = []Input{{Type: CategoryInput, Levels: []string{"?", ""}}, {}, {}}
+			n.MissingTokens = []string{}
+		}, []string{"inputs[0].levels[1]"}, []error{ErrRange}},
+		{"duplicate tokens", func(n *Network) { n.MissingTokens = []string{"NA", "", "NA"} }, []string{"missing_tokens[2]"}, []error{ErrDuplicate}},
+		{"class weights both", func(n *Network) {
+			n.Train.ClassWeights = ClassWeights{Balanced: true, By: map[string]float64{"a": 2}}
+		}, []string{"train.class_weights"}, []error{ErrConflict}},
+		{"class weights sorted", func(n *Network) {
+			n.Train.ClassWeights.By = map[string]float64{"z": 1, "b": math.NaN(), "a": 0}
+		}, []string{"train.class_weights.a", "train.class_weights.b", "train.class_weights.z"}, []error{ErrRange, ErrRange, ErrUnknownName}},
 		{
 			// (MaxInt/2+1)·(k+1) would overflow int; each width alone is
 			// within an unbounded limit, so only the overflow-safe sum can
@@ -125,6 +168,7 @@ func TestLimits(t *testing.T) {
 		{"params one short", Limits{MaxParams: 84}, ErrTooLarge, "output.units"},
 		{"classes exact", Limits{MaxClasses: 5}, nil, ""},
 		{"classes one short", Limits{MaxClasses: 4}, ErrTooLarge, "output.units"},
+		{"levels unlimited", Limits{MaxLevels: 1}, nil, ""}, // no category here
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -138,6 +182,71 @@ func TestLimits(t *testing.T) {
 			}
 		})
 	}
+}
+
+func TestLimitsLevels(t *testing.T) {
+	// A category of 3 declared levels, one of 2 with a missing level and a
+	// number: 3 + 3 + 1 = 7 input units; 8·10 + 11·2 = 102 params.
+	src := "version: 1\ninputs:\n  - {name: a, type: category, levels: [x, y, z]}\n" +
+		"  - {name: b, type: category, levels: [u, v], missing: level}\n  - c\n" +
+		"hidden: [{units: 10, activation: relu}]\noutput: {units: 2}\n"
+	tests := []struct {
+		name  string
+		lim   Limits
+		kind  error
+		line  int
+		col   int
+		field string
+	}{
+		{"defaults", Limits{}, nil, 0, 0, ""},
+		{"levels exact", Limits{MaxLevels: 3}, nil, 0, 0, ""},
+		{"levels one short", Limits{MaxLevels: 2}, ErrTooLarge, 3, 39, "inputs[0].levels"},
+		{"params exact", Limits{MaxParams: 102}, nil, 0, 0, ""},
+		{"params one short", Limits{MaxParams: 101}, ErrTooLarge, 7, 17, "output.units"},
+		{"input units over the param limit", Limits{MaxParams: 6}, ErrTooLarge, 3, 3, "inputs"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			n, err := ParseLimits(strings.NewReader(src), tt.lim)
+			if tt.kind == nil {
+				require.NoError(t, err)
+				assert.Equal(t, []int{7, 10, 2}, n.Sizes())
+				assert.Equal(t, 102, n.ParamCount())
+				return
+			}
+			require.ErrorIs(t, err, tt.kind)
+			var e *Error
+			require.ErrorAs(t, err, &e)
+			assert.Equal(t, []any{tt.line, tt.col, tt.field}, []any{e.Line, e.Column, e.Field}, "%v", err)
+		})
+	}
+	// Validate applies the same bound to a Network built in Go.
+	n := valid()
+	n.Features = []string{"x", "y", "z"}
+	n.Types = []Input{{Type: CategoryInput, Levels: []string{"a", "b", "c"}}, {}, {}}
+	err := n.ValidateLimits(Limits{MaxLevels: 2})
+	require.ErrorIs(t, err, ErrTooLarge)
+	var e *Error
+	require.ErrorAs(t, err, &e)
+	assert.Equal(t, "inputs[0].levels", e.Field)
+}
+
+// TestSizesTyped checks the input width of typed inputs: one unit per
+// level, one more with missing: level, a lower bound of one unit for a
+// category whose levels are still to be learned.
+func TestSizesTyped(t *testing.T) {
+	n := valid() // 3 inputs, 4 hidden, 2 classes
+	n.Features = []string{"x", "plan", "region"}
+	n.Types = []Input{{}, {Type: CategoryInput, Levels: []string{"a", "b", "c"}}, {Type: CategoryInput, Missing: MissingLevel}}
+	assert.False(t, n.Resolved())
+	assert.Equal(t, 0, n.Width())
+	assert.Equal(t, []int{5, 4, 2}, n.Sizes()) // 1 + 3 + (unresolved: 1)
+	n.Types[2].Levels = []string{"n", "s"}
+	assert.True(t, n.Resolved())
+	assert.Equal(t, 7, n.Width()) // 1 + 3 + (2 + 1)
+	// (7+1)·4 + (4+1)·2 = 42.
+	assert.Equal(t, 42, n.ParamCount())
+	require.NoError(t, n.Validate())
 }
 
 // countReader yields n bytes of a repeated spec line without holding them.
@@ -190,14 +299,24 @@ func TestReadError(t *testing.T) {
 func TestClone(t *testing.T) {
 	n := valid()
 	n.Features = []string{"x", "y", "z"}
+	n.Types = []Input{{}, {Type: CategoryInput, Levels: []string{"p", "q"}}, {Missing: MissingConstant, Fill: 1}}
+	n.MissingTokens = []string{"", "NA"}
+	n.Train.ClassWeights.By = map[string]float64{"a": 2}
 	c := n.Clone()
 	if !reflect.DeepEqual(n, c) {
 		t.Fatalf("clone differs: %#v", c)
 	}
 	c.Features[0], c.Hidden[0].Units, c.Output.Classes[0] = "q", 99, "q"
-	if n.Features[0] != "x" || n.Hidden[0].Units != 4 || n.Output.Classes[0] != "a" {
+	c.Types[1].Levels[0], c.Types[2].Fill, c.MissingTokens[1], c.Train.ClassWeights.By["a"] = "r", 5, "?", 3
+	if n.Features[0] != "x" || n.Hidden[0].Units != 4 || n.Output.Classes[0] != "a" ||
+		n.Types[1].Levels[0] != "p" || n.Types[2].Fill != 1 || n.MissingTokens[1] != "NA" || n.Train.ClassWeights.By["a"] != 2 {
 		t.Errorf("clone shares memory with the original: %#v", n)
 	}
+	// nil stays nil, so a clone of a parsed spec round-trips like the spec.
+	m := valid().Clone()
+	assert.Nil(t, m.Types)
+	assert.Nil(t, m.MissingTokens)
+	assert.Nil(t, m.Train.ClassWeights.By)
 	if (*Network)(nil).Clone() != nil {
 		t.Error("Clone of nil is not nil")
 	}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 
 	"gopkg.in/yaml.v3"
@@ -11,16 +12,24 @@ import (
 
 // WriteYAML writes n in the canonical form of the format: keys in the
 // order of the package documentation, classes as a flow list (or
-// `units: K` when the classes are "0" … "K-1"), feature names when n has
-// them, penalty and init always, train only with its set (non-zero)
-// fields. Parse of the output gives a Network equal to n (reflect.DeepEqual)
-// for every n that Parse returns, and for any valid n whose empty Hidden is
-// nil.
+// `units: K` when the classes are "0" … "K-1"), the inputs as a count or,
+// when n has feature names, as a list whose entries are bare names for
+// plain numbers (the zero Input) and otherwise mappings with only their
+// non-default keys (name, type, levels as a flow list, missing, unknown),
+// missing_tokens only when they differ from DefaultMissingTokens, penalty
+// and init always, train only with its set (non-zero) fields, class
+// weights as `balanced` or a mapping in class order.
+//
+// Parse of the output gives a Network equal to n (reflect.DeepEqual) for
+// every n that Parse returns, and for any valid n whose empty Hidden is
+// nil, whose MissingTokens is set, and whose Types is set when Features
+// is (a nil Types reads back as zero Inputs, a nil MissingTokens as
+// DefaultMissingTokens: the same meaning, another value).
 //
 // WriteYAML first checks n as Validate does, without the size limits, and
 // writes nothing if n is invalid.
 func (n *Network) WriteYAML(w io.Writer) error {
-	if err := asError(n.check(Limits{MaxParams: math.MaxInt, MaxClasses: math.MaxInt})); err != nil {
+	if err := asError(n.check(Limits{MaxParams: math.MaxInt, MaxClasses: math.MaxInt, MaxLevels: math.MaxInt})); err != nil {
 		return err
 	}
 	root := &yaml.Node{Kind: yaml.MappingNode}
@@ -29,9 +38,16 @@ func (n *Network) WriteYAML(w io.Writer) error {
 		root.Content = pair(root.Content, "name", str(n.Name))
 	}
 	if n.Features != nil {
-		root.Content = pair(root.Content, "inputs", seq(0, n.Features))
+		in := &yaml.Node{Kind: yaml.SequenceNode}
+		for i, name := range n.Features {
+			in.Content = append(in.Content, input(name, n.Input(i)))
+		}
+		root.Content = pair(root.Content, "inputs", in)
 	} else {
 		root.Content = pair(root.Content, "inputs", num(n.Inputs))
+	}
+	if n.MissingTokens != nil && !slices.Equal(n.MissingTokens, DefaultMissingTokens) {
+		root.Content = pair(root.Content, "missing_tokens", seq(yaml.FlowStyle, n.MissingTokens))
 	}
 	if len(n.Hidden) > 0 {
 		h := &yaml.Node{Kind: yaml.SequenceNode}
@@ -86,6 +102,17 @@ func (n *Network) WriteYAML(w io.Writer) error {
 	if n.Train.Tolerance != 0 {
 		t.Content = pair(t.Content, "tolerance", float(n.Train.Tolerance))
 	}
+	if cw := n.Train.ClassWeights; cw.Balanced {
+		t.Content = pair(t.Content, "class_weights", plain("balanced"))
+	} else if len(cw.By) > 0 {
+		m := &yaml.Node{Kind: yaml.MappingNode}
+		for _, c := range n.Output.Classes {
+			if w, ok := cw.By[c]; ok {
+				m.Content = append(m.Content, str(c), float(w))
+			}
+		}
+		t.Content = pair(t.Content, "class_weights", m)
+	}
 	if len(t.Content) > 0 {
 		root.Content = pair(root.Content, "train", t)
 	}
@@ -99,6 +126,34 @@ func (n *Network) WriteYAML(w io.Writer) error {
 		return fmt.Errorf("spec: write: %w", err)
 	}
 	return nil
+}
+
+// input writes one entry of `inputs`: a bare name for the zero Input,
+// else a mapping with the keys that differ from their defaults, in the
+// order name, type, levels, missing, unknown.
+func input(name string, in Input) *yaml.Node {
+	if in.IsZero() {
+		return str(name)
+	}
+	m := &yaml.Node{Kind: yaml.MappingNode}
+	m.Content = pair(m.Content, "name", str(name))
+	if in.Type != NumberInput {
+		m.Content = pair(m.Content, "type", plain(in.Type.String()))
+	}
+	if in.Levels != nil {
+		m.Content = pair(m.Content, "levels", seq(yaml.FlowStyle, in.Levels))
+	}
+	switch in.Missing {
+	case MissingRefuse:
+	case MissingConstant:
+		m.Content = pair(m.Content, "missing", float(in.Fill))
+	default:
+		m.Content = pair(m.Content, "missing", plain(in.Missing.String()))
+	}
+	if in.Unknown != UnknownRefuse {
+		m.Content = pair(m.Content, "unknown", plain(in.Unknown.String()))
+	}
+	return m
 }
 
 // numbered reports whether classes are exactly "0" … "K-1", the names that
