@@ -305,6 +305,27 @@ output: {classes: [democrat, republican], activation: softmax}
 penalty: {l2: 0.2}
 `, votes, 30)})
 
+	// Hand-set params (handModel: softplus hidden units, softmax output):
+	// rows whose pre-activations reach ±100, so softplus takes both its
+	// branches, including e^(−|z|) below ulp(1)/2, where 1 + e rounds to 1.
+	var hand strings.Builder
+	hand.WriteString("u,v,class\n")
+	for _, u := range []float64{-20, -5, -0.5, 0, 0.25, 1, 1.5, 2.5, 8} {
+		for _, v := range []float64{-60, -8, 0, 1.5, 2, 9, 50} {
+			fmt.Fprintf(&hand, "%v,%v,low\n", u, v)
+		}
+	}
+	cs = append(cs, exportCase{name: "hand-softplus-extremes", rows: hand.String(), model: handModel(t)})
+
+	var tail strings.Builder
+	tail.WriteString("x,class\n")
+	for _, x := range []float64{-41, -40, -38.5, -37, -36, -35.2, -35, -34.5, -34} {
+		fmt.Fprintf(&tail, "%v,no\n", x)
+	}
+	for _, g := range []spec.Activation{spec.Softplus, spec.Sigmoid} {
+		cs = append(cs, exportCase{name: "tail-" + g.String(), rows: tail.String(), model: tailModel(t, g)})
+	}
+
 	train, rows := irisMixed(t, iris)
 	cs = append(cs, exportCase{name: "iris-mixed-missing", rows: rows, model: trainCase(t, `version: 1
 name: iris-mixed
