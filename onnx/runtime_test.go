@@ -44,7 +44,7 @@ func missingTool(t *testing.T, format string, a ...any) {
 	if requireTools() {
 		t.Fatalf("%s (SEINE_REQUIRE_ONNX=1, so this is a failure)", msg)
 	}
-	t.Skip(msg)
+	t.Skip("skipping: " + msg)
 }
 
 // nodeRuntime returns the node binary and the node_modules folder holding
@@ -53,14 +53,14 @@ func nodeRuntime(t *testing.T) (node, modules string) {
 	t.Helper()
 	node, err := exec.LookPath("node")
 	if err != nil {
-		missingTool(t, "skipping: no node on PATH; the export is checked against onnxruntime-web run by node (see .ci/run)")
+		missingTool(t, "no node on PATH; the export is checked against onnxruntime-web run by node (see .ci/run)")
 	}
 	modules = os.Getenv("SEINE_ONNX_NODE_MODULES")
 	if modules == "" {
-		missingTool(t, "skipping: SEINE_ONNX_NODE_MODULES is not set; run `npm install onnxruntime-web@1.30.0` in a folder and set it to that folder's node_modules (see .ci/run)")
+		missingTool(t, "SEINE_ONNX_NODE_MODULES is not set; run `npm install onnxruntime-web@1.30.0` in a folder and set it to that folder's node_modules (see .ci/run)")
 	}
 	if _, err := os.Stat(filepath.Join(modules, "onnxruntime-web", "package.json")); err != nil {
-		missingTool(t, "skipping: SEINE_ONNX_NODE_MODULES=%s holds no onnxruntime-web: %v", modules, err)
+		missingTool(t, "SEINE_ONNX_NODE_MODULES=%s holds no onnxruntime-web: %v", modules, err)
 	}
 	return node, modules
 }
@@ -72,7 +72,7 @@ const debianPython = "/usr/bin/python3"
 func checkerPython(t *testing.T) string {
 	t.Helper()
 	if err := exec.Command(debianPython, "-c", "import onnx.checker").Run(); err != nil {
-		missingTool(t, "skipping: %s cannot import onnx (%v); apt-get install python3-onnx", debianPython, err)
+		missingTool(t, "%s cannot import onnx (%v); apt-get install python3-onnx", debianPython, err)
 	}
 	return debianPython
 }
