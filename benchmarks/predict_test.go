@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
@@ -24,7 +25,7 @@ var triage struct {
 	once  sync.Once
 	model *nn.Model
 	file  []byte
-	rows  *mat.Dense // the raw feature rows of sessions.csv
+	rows  *mat.Dense // the rows of sessions.csv, coded for the model (encode.Encoder.CodeSet)
 	err   error
 }
 
@@ -51,7 +52,7 @@ func triageModel(b *testing.B) (*nn.Model, []byte, *mat.Dense) {
 			return
 		}
 		defer d.Close()
-		set, err := data.ReadCSV(d, data.CSVOptions{Classes: s.Output.Classes, Features: s.Features})
+		set, err := data.ReadCSV(d, data.CSVOptions{Classes: s.Output.Classes, Columns: encode.ColumnsFor(s), MissingTokens: s.MissingTokens})
 		if err != nil {
 			triage.err = err
 			return
@@ -66,7 +67,12 @@ func triageModel(b *testing.B) (*nn.Model, []byte, *mat.Dense) {
 			triage.err = err
 			return
 		}
-		triage.model, triage.file, triage.rows = res.Model, buf.Bytes(), set.X
+		coded, err := res.Model.Encoder().CodeSet(set)
+		if err != nil {
+			triage.err = err
+			return
+		}
+		triage.model, triage.file, triage.rows = res.Model, buf.Bytes(), coded
 	})
 	if triage.err != nil {
 		b.Fatal(triage.err)

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
 )
@@ -38,7 +39,7 @@ func TestLearningCurveTriage(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	set, err := data.ReadCSV(f, data.CSVOptions{Features: s.Features, Classes: s.Output.Classes})
+	set, err := data.ReadCSV(f, data.CSVOptions{Columns: encode.ColumnsFor(s), MissingTokens: s.MissingTokens, Classes: s.Output.Classes})
 	f.Close()
 	if err != nil {
 		t.Fatal(err)

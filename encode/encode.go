@@ -222,16 +222,23 @@ func (e *Encoder) HasCategories() bool {
 	return false
 }
 
-// Equal reports whether e and o encode every value the same way.
+// Equal reports whether e and o encode every value the same way: the same
+// inputs, levels, rules and missing tokens, and the same fill values and
+// scaling bit for bit where they are used.
 func (e *Encoder) Equal(o *Encoder) bool {
 	if len(e.inputs) != len(o.inputs) || !slices.Equal(e.tokens, o.tokens) {
 		return false
 	}
 	for i := range e.inputs {
 		a, b := &e.inputs[i], &o.inputs[i]
-		if a.Name != b.Name || a.Type != b.Type || !slices.Equal(a.Levels, b.Levels) || a.Missing != b.Missing ||
-			a.Unknown != b.Unknown || math.Float64bits(a.Fill) != math.Float64bits(b.Fill) ||
-			math.Float64bits(a.Mean) != math.Float64bits(b.Mean) || math.Float64bits(a.Scale) != math.Float64bits(b.Scale) {
+		if a.Name != b.Name || a.Type != b.Type || !slices.Equal(a.Levels, b.Levels) || a.Missing != b.Missing || a.Unknown != b.Unknown {
+			return false
+		}
+		same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) || (x != x && y != y) }
+		switch {
+		case a.Type == spec.NumberInput && !(same(a.Mean, b.Mean) && same(a.Scale, b.Scale) && (a.Missing == spec.MissingRefuse || same(a.Fill, b.Fill))):
+			return false
+		case a.Type == spec.CategoryInput && a.Missing == spec.MissingMode && a.Fill != b.Fill:
 			return false
 		}
 	}
@@ -300,7 +307,7 @@ func (e *Encoder) codeText(i int, t string) (float64, error) {
 	if in.Type == spec.NumberInput {
 		v, err := strconv.ParseFloat(t, 64)
 		if err != nil {
-			return 0, fmt.Errorf("%w: %q is not a number; declare `type: category` for a text input", ErrType, cut(t))
+			return 0, describe(ErrType, "%q is not a number; declare `type: category` for a text input", cut(t))
 		}
 		return e.codeNumber(i, v)
 	}
@@ -310,17 +317,17 @@ func (e *Encoder) codeText(i int, t string) (float64, error) {
 	if in.Unknown == spec.UnknownIgnore {
 		return -1, nil
 	}
-	return 0, fmt.Errorf("%w: %q is not one of the levels seen in training (%s); set `unknown: ignore` to accept it", ErrUnknownLevel, cut(t), levelList(in.Levels))
+	return 0, describe(ErrUnknownLevel, "%q is not one of the levels seen in training (%s); set `unknown: ignore` in the spec to accept unknown levels", cut(t), levelList(in.Levels))
 }
 
 // codeNumber codes the number v of input i.
 func (e *Encoder) codeNumber(i int, v float64) (float64, error) {
 	in := &e.inputs[i]
 	if in.Type == spec.CategoryInput {
-		return 0, fmt.Errorf("%w: got the number %v, want a level of the category (text)", ErrType, v)
+		return 0, describe(ErrType, "got the number %v, want one of the category's levels as text", v)
 	}
 	if !finite(v) {
-		return 0, fmt.Errorf("%w: %v", ErrNotFinite, v)
+		return 0, describe(ErrNotFinite, "%v is not a finite number", v)
 	}
 	return v, nil
 }
@@ -328,7 +335,7 @@ func (e *Encoder) codeNumber(i int, v float64) (float64, error) {
 // codeMissing codes a missing value of input i.
 func (e *Encoder) codeMissing(i int) (float64, error) {
 	if e.inputs[i].Missing == spec.MissingRefuse {
-		return 0, fmt.Errorf("%w: the input's missing rule is refuse; set `missing:` in the spec to fill it", ErrMissingValue)
+		return 0, describe(ErrMissingValue, "missing value; the input's missing rule is refuse: set `missing:` in the spec to fill it")
 	}
 	return math.NaN(), nil
 }

@@ -401,9 +401,9 @@ func TestEncodeSetErrors(t *testing.T) {
 		cols[1][i] = 1
 	}
 	_, err = e.EncodeSet(setOf(cols, texts, []string{"n", "plan", "region"}))
-	var list *Errors
+	var list *data.ErrorList
 	require.True(t, errors.As(err, &list))
-	assert.Len(t, list.Listed, 20)
-	assert.Equal(t, []string{`and 10 more in column "plan"`}, list.More)
-	assert.Contains(t, err.Error(), "30 problems")
+	assert.Len(t, list.Errors, 20)
+	assert.Equal(t, []data.ColumnCount{{Column: "plan", N: 10}}, list.More)
+	assert.Contains(t, err.Error(), `and 10 more in column "plan"`)
 }

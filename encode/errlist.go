@@ -2,92 +2,74 @@ package encode
 
 import (
 	"fmt"
-	"strings"
 
 	"github.com/seine-ml/seine/data"
 )
 
-// maxListed is the number of problems an encoding error lists before it
-// only counts them per column.
-const maxListed = 20
-
-// errorList collects the problems of encoding a data set: the first
-// maxListed with their positions, then counts per input.
+// errorList collects the problems of encoding a data set as data.ReadCSV
+// collects those of reading one: the first data.MaxListed with their
+// positions, then counts per input.
 type errorList struct {
-	listed []*data.Error
-	more   []int // per input index: problems not listed
-	names  []string
-	total  int
+	list  data.ErrorList
+	more  map[string]int
+	order []string
 }
 
-func (l *errorList) add(set *data.Set, row int, name string, j int, err error) {
-	l.total++
-	if len(l.listed) < maxListed {
-		e := &data.Error{Row: row + 1, Column: name, Field: 0, Err: err}
+func (l *errorList) add(set *data.Set, row int, name string, err error) {
+	if len(l.list.Errors) < data.MaxListed {
+		e := &data.Error{Row: row + 1, Column: name, Err: err}
 		if set.Lines != nil {
-			e.Line = set.Lines[row]
-			e.Row = 0 // the set may be a subset: the line is the position that holds
+			// The set may be a subset: its row numbers are not the
+			// file's, its lines are.
+			e.Line, e.Row = set.Lines[row], 0
 		}
-		l.listed = append(l.listed, e)
+		l.list.Errors = append(l.list.Errors, e)
 		return
 	}
-	for len(l.more) <= j {
-		l.more = append(l.more, 0)
-		l.names = append(l.names, "")
+	if l.more == nil {
+		l.more = map[string]int{}
 	}
-	l.more[j]++
-	l.names[j] = name
+	if l.more[name] == 0 {
+		l.order = append(l.order, name)
+	}
+	l.more[name]++
 }
 
+// err returns nil, the one problem (a *data.Error), or a *data.ErrorList.
 func (l *errorList) err() error {
-	if l.total == 0 {
+	switch len(l.list.Errors) {
+	case 0:
 		return nil
-	}
-	if l.total == 1 {
-		return l.listed[0]
-	}
-	return &Errors{Listed: l.listed, More: l.moreLines(), Total: l.total}
-}
-
-func (l *errorList) moreLines() []string {
-	var out []string
-	for j, n := range l.more {
-		if n > 0 {
-			out = append(out, fmt.Sprintf("and %d more in column %q", n, l.names[j]))
+	case 1:
+		if len(l.order) == 0 {
+			return l.list.Errors[0]
 		}
 	}
-	return out
+	for _, name := range l.order {
+		l.list.More = append(l.list.More, data.ColumnCount{Column: name, N: l.more[name]})
+	}
+	return &l.list
 }
 
-// Errors is the list of problems found encoding a data set: the first 20
-// with their positions (*data.Error, whose Err wraps the sentinel), then a
-// line per column counting the rest. errors.Is and errors.As see every
-// listed problem.
-type Errors struct {
-	Listed []*data.Error
-	More   []string
-	Total  int
+// detail is a problem described in words that unwraps to its sentinels, so
+// that a message says what was found and what was expected, without the
+// sentinels' own text, while errors.Is still matches them.
+type detail struct {
+	msg   string
+	kinds []error
 }
 
-func (e *Errors) Error() string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "%d problems:", e.Total)
-	for _, p := range e.Listed {
-		b.WriteString("\n")
-		b.WriteString(p.Error())
-	}
-	for _, m := range e.More {
-		b.WriteString("\n")
-		b.WriteString(m)
-	}
-	return b.String()
-}
+func (d *detail) Error() string   { return d.msg }
+func (d *detail) Unwrap() []error { return d.kinds }
 
-// Unwrap returns the listed problems.
-func (e *Errors) Unwrap() []error {
-	out := make([]error, len(e.Listed))
-	for i, p := range e.Listed {
-		out[i] = p
+// describe returns an error whose message is the formatted text and which
+// unwraps to kind and to any error among args (for %v of a cause).
+func describe(kind error, format string, args ...any) error {
+	d := &detail{msg: fmt.Sprintf(format, args...), kinds: []error{kind}}
+	for _, a := range args {
+		if e, ok := a.(error); ok {
+			d.kinds = append(d.kinds, e)
+		}
 	}
-	return out
+	return d
 }

@@ -113,11 +113,11 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 		}
 		if t.Type == spec.CategoryInput {
 			if err := fitCategory(&in, t, col, texts); err != nil {
-				return nil, nil, fmt.Errorf("%w: input %q: %w", ErrFit, in.Name, err)
+				return nil, nil, describe(ErrFit, "input %q: %v", in.Name, err)
 			}
 		} else {
 			if err := fitNumber(&in, t, col); err != nil {
-				return nil, nil, fmt.Errorf("%w: input %q: %w", ErrFit, in.Name, err)
+				return nil, nil, describe(ErrFit, "input %q: %v", in.Name, err)
 			}
 			numCols = append(numCols, j)
 		}
@@ -164,7 +164,7 @@ func fitNumber(in *Input, t spec.Input, col []float64) error {
 	switch t.Missing {
 	case spec.MissingRefuse:
 		if len(vals) < len(col) {
-			return fmt.Errorf("%w in the training rows and the input's missing rule is refuse", ErrMissingValue)
+			return describe(ErrMissingValue, "a value is missing in the training rows and the input's missing rule is refuse")
 		}
 	case spec.MissingMean:
 		in.Fill = mean(vals)
@@ -242,7 +242,7 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 		count[int(v)]++
 	}
 	if t.Missing == spec.MissingRefuse && missing > 0 {
-		return fmt.Errorf("%w in the training rows and the input's missing rule is refuse", ErrMissingValue)
+		return describe(ErrMissingValue, "a value is missing in the training rows and the input's missing rule is refuse")
 	}
 	if t.Levels != nil {
 		in.Levels = slices.Clone(t.Levels)
@@ -261,7 +261,7 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 			if len(in.Levels) == 1 {
 				seen = strconv.Quote(in.Levels[0])
 			}
-			return fmt.Errorf("%w: the training rows hold one level only (%s); a category with one level carries no information", ErrLevels, seen)
+			return describe(ErrLevels, "the training rows hold one level only (%s); a category needs at least two levels to carry information", seen)
 		}
 	}
 	if t.Missing == spec.MissingMode {
@@ -369,8 +369,26 @@ func (e *Encoder) CheckSpec(s *spec.Network) error {
 // EncodeSet codes and expands every row of set, read with e.Columns(), into
 // a new rows × Width matrix. Every problem (a missing value under refuse,
 // an unknown level under refuse) is reported with the row's line in the
-// file and the input's name, up to a cap (see data.ErrorList).
+// file and the input's name: one as a *data.Error, several as a
+// *data.ErrorList that lists the first data.MaxListed and counts the rest.
 func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
+	coded, err := e.CodeSet(set)
+	if err != nil {
+		return nil, err
+	}
+	r, _ := coded.Dims()
+	out := mat.NewDense(r, e.width, nil)
+	for i := range r {
+		e.Expand(out.RawRowView(i), coded.RawRowView(i))
+	}
+	return out, nil
+}
+
+// CodeSet codes every row of set, read with e.Columns(), into a new
+// rows × NumInputs matrix of coded rows (see Encoder): the rows that a
+// model's float64 prediction methods take. Problems are reported as by
+// EncodeSet.
+func (e *Encoder) CodeSet(set *data.Set) (*mat.Dense, error) {
 	if set == nil || set.Rows() == 0 {
 		return nil, fmt.Errorf("%w: no rows", ErrNoSet)
 	}
@@ -409,11 +427,10 @@ func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
 			}
 		}
 	}
-	out := mat.NewDense(r, e.width, nil)
-	coded := make([]float64, c)
+	out := mat.NewDense(r, c, nil)
 	var errs errorList
 	for i := range r {
-		ok := true
+		row := out.RawRowView(i)
 		for j := range c {
 			v := set.X.At(i, j)
 			var err error
@@ -427,17 +444,30 @@ func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
 				}
 			}
 			if err != nil {
-				errs.add(set, i, e.inputs[j].Name, j, err)
-				ok = false
+				errs.add(set, i, e.inputs[j].Name, err)
 			}
-			coded[j] = v
-		}
-		if ok {
-			e.Expand(out.RawRowView(i), coded)
+			row[j] = v
 		}
 	}
 	if err := errs.err(); err != nil {
 		return nil, err
 	}
 	return out, nil
+}
+
+// Placeholder returns s when every category input has its levels, and
+// otherwise a copy of s in which each category without levels has two
+// stand-in levels: a net of the right depth and nearly the right width, to
+// check or describe a spec before any data is seen. Never train it.
+func Placeholder(s *spec.Network) *spec.Network {
+	if s.Resolved() || s.Types == nil {
+		return s
+	}
+	c := s.Clone()
+	for i := range c.Types {
+		if c.Types[i].Units() == 0 {
+			c.Types[i].Levels = []string{"\x00level-1", "\x00level-2"}
+		}
+	}
+	return c
 }

@@ -142,7 +142,7 @@ func (e *Encoder) CodeRecord(dst []float64, rec map[string]any) ([]float64, erro
 		name := e.inputs[i].Name
 		raw, ok := rec[name]
 		if !ok {
-			return nil, &FieldError{Field: name, Err: fmt.Errorf("%w: the record has no field of that name", ErrMissingField)}
+			return nil, &FieldError{Field: name, Err: describe(ErrMissingField, "the record has no field of that name; send null for a missing value")}
 		}
 		var v Value
 		switch t := raw.(type) {
@@ -160,13 +160,13 @@ func (e *Encoder) CodeRecord(dst []float64, rec map[string]any) ([]float64, erro
 		case json.Number:
 			f, err := t.Float64()
 			if err != nil {
-				return nil, &FieldError{Field: name, Err: fmt.Errorf("%w: %s is not a number", ErrType, t)}
+				return nil, &FieldError{Field: name, Err: describe(ErrType, "%s is not a number", t)}
 			}
 			v = Number(f)
 		case string:
 			v = Text(t)
 		default:
-			return nil, &FieldError{Field: name, Err: fmt.Errorf("%w: got a %T, want a number, a text or null", ErrType, raw)}
+			return nil, &FieldError{Field: name, Err: describe(ErrType, "got a %T, want a number, a text or null", raw)}
 		}
 		c, err := e.code(i, v)
 		if err != nil {

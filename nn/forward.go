@@ -85,3 +85,23 @@ func (n *Net) ForwardRow(dst []float64, ws *Workspace, params []float64, x []flo
 	zL := ws.w.forward(n, params, mat64(x, 1, len(x)))
 	probabilities(n.act[n.NumLayers()-1], dst, zL)
 }
+
+// Logits returns the output pre-activations z_L of the rows of x, before
+// the output activation (as Forward returns h = σ(z_L) or softmax(z_L)):
+// rows × Outputs, a view into ws valid until the next call with ws. It is
+// what temperature scaling divides. It allocates nothing under the same
+// conditions as Forward and panics as Forward does.
+func (n *Net) Logits(ws *Workspace, params []float64, x *mat.Dense) *mat.Dense {
+	n.checkParams(params)
+	n.checkWorkspace(ws)
+	r, c := x.Dims()
+	if c != n.Inputs() {
+		panic(fmt.Sprintf("nn: Logits: x has %d columns, net has %d inputs", c, n.Inputs()))
+	}
+	if r > ws.w.rows {
+		ws.w = newWork(n, r, false)
+	}
+	zL := ws.w.forward(n, params, x.RawMatrix())
+	ws.out.SetRawMatrix(zL)
+	return &ws.out
+}

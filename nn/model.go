@@ -36,8 +36,12 @@ type Model struct {
 	Features []string // the raw inputs' names, from the encoder
 	Label    string   // the name of the label column in the training file; "" if unknown
 	Summary  Summary
+	// Decision holds the temperature and operating thresholds chosen on
+	// holdout rows; the zero value changes nothing.
+	Decision Decision
 
 	enc       *encode.Encoder
+	fwd       []float64 // the params predictions use: Params, or a tempered copy
 	net       *Net
 	pool      sync.Pool // *rowScratch
 	batchPool sync.Pool // *batchScratch
@@ -128,7 +132,11 @@ func (m *Model) init() error {
 	if len(m.Classes) != len(m.Spec.Output.Classes) {
 		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.Classes), len(m.Spec.Output.Classes))
 	}
+	if err := m.Decision.check(m.Spec); err != nil {
+		return err
+	}
 	m.net = net
+	m.fwd = m.tempered()
 	n := m.enc.NumInputs()
 	m.batchPool.New = func() any {
 		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), coded: make([]float64, n), probs: make([]float64, len(m.Classes))}
@@ -174,7 +182,7 @@ func (m *Model) classProbs(x []float64) *rowScratch {
 	}
 	sc := m.pool.Get().(*rowScratch)
 	m.enc.Expand(sc.in, x)
-	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
 	if len(sc.out) == 1 && len(sc.probs) == 2 {
 		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
 	} else {
@@ -200,11 +208,14 @@ func (m *Model) Probabilities(dst, x []float64) []float64 {
 	return dst
 }
 
-// Predict returns the index in Classes of the most probable class of the
-// coded row x (the first one on a tie). It allocates nothing after warm-up.
+// Predict returns the index in Classes of the class decided for the coded
+// row x: the most probable class (the first one on a tie), or for a binary
+// sigmoid model with an operating threshold t (Decision), class 1 when its
+// probability is at least t. For a multi-label model it is the most
+// probable class; Labels gives the set. It allocates nothing after warm-up.
 func (m *Model) Predict(x []float64) int {
 	sc := m.classProbs(x)
-	k := argmax(sc.probs)
+	k := m.decide(sc.probs)
 	m.pool.Put(sc)
 	return k
 }
@@ -220,13 +231,18 @@ func argmax(p []float64) int {
 }
 
 // Labels appends to dst the indices of the classes whose probability is at
-// least threshold, in class order, and returns it. It is meant for
-// multi-label models; for a softmax model it returns the classes above the
-// threshold just the same. A threshold of 0.5 is the usual choice.
+// least threshold, in class order, and returns it. A threshold ≤ 0 means
+// the model's own: its operating thresholds (Decision) for a multi-label
+// model that has them, else 0.5. It is meant for multi-label models; for a
+// softmax model it returns the classes above the threshold just the same.
 func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
 	sc := m.classProbs(x)
 	for i, v := range sc.probs {
-		if v >= threshold {
+		t := threshold
+		if t <= 0 {
+			t = m.threshold(i)
+		}
+		if v >= t {
 			dst = append(dst, i)
 		}
 	}
@@ -249,7 +265,7 @@ func (m *Model) ProbabilitiesBatch(dst *mat.Dense, x mat.Matrix) {
 	m.eachRow(x, func(i int, p []float64) { copy(dst.RawRowView(i), p) })
 }
 
-// PredictBatch writes the most probable class of each raw row of x into dst
+// PredictBatch writes the class decided (as by Predict) for each coded row of x into dst
 // (len = rows of x) and returns it; dst is allocated when it is too short.
 func (m *Model) PredictBatch(dst []int, x mat.Matrix) []int {
 	r, _ := x.Dims()
@@ -257,7 +273,7 @@ func (m *Model) PredictBatch(dst []int, x mat.Matrix) []int {
 		dst = make([]int, r)
 	}
 	dst = dst[:r]
-	m.eachRow(x, func(i int, p []float64) { dst[i] = argmax(p) })
+	m.eachRow(x, func(i int, p []float64) { dst[i] = m.decide(p) })
 	return dst
 }
 
@@ -301,7 +317,7 @@ func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
 		if n < batchBlock {
 			block = sc.in.Slice(0, n, 0, m.net.Inputs()).(*mat.Dense)
 		}
-		out := m.net.Forward(sc.ws, m.Params, block)
+		out := m.net.Forward(sc.ws, m.fwd, block)
 		for i := 0; i < n; i++ {
 			o := out.RawRowView(i)
 			if len(o) == 1 && len(sc.probs) == 2 {

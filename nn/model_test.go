@@ -333,7 +333,14 @@ func seal(t testing.TB, doc map[string]any) {
 		require.NoError(t, json.Unmarshal(b, &fe))
 	}
 	label, _ := doc["label"].(string)
-	doc["sha256"] = digest(spec, strs(doc["classes"]), label, &fe, raw)
+	var dec *Decision
+	if d, ok := doc["decision"]; ok {
+		b, err := json.Marshal(d)
+		require.NoError(t, err)
+		dec = new(Decision)
+		require.NoError(t, json.Unmarshal(b, dec))
+	}
+	doc["sha256"] = digest(spec, strs(doc["classes"]), label, &fe, dec, raw)
 }
 
 // A model file of format version 1 (written by seine 0.1.0, before inputs

@@ -30,6 +30,8 @@ import (
 //	  "spec":     "<the resolved spec as canonical YAML text>",
 //	  "classes":  ["human", …],
 //	  "label":    "class",
+//	  "decision": {"temperature": 1.7, "thresholds": [0.31],
+//	               "rule": "max-f1"}                  (left out when none)
 //	  "encoder":  {"missing_tokens": ["", "?", "NA"],
 //	               "inputs": [{"name": "req_per_min", "type": "number",
 //	                           "missing": "median", "fill": 12.5,
@@ -52,7 +54,8 @@ import (
 // The content digest is the SHA-256 of everything that changes what the
 // model predicts, in a fixed binary form: the spec text, the class names,
 // the label name, the encoder (missing tokens, then per input its name,
-// type, levels, rules, fill, mean and scale) and the raw params bytes, each
+// type, levels, rules, fill, mean and scale), the decision (temperature,
+// thresholds, rule, target; a nil marker when none) and the raw params bytes, each
 // preceded by its length as a little-endian uint64 (a nil list as 2⁶⁴−1)
 // and numbers as their IEEE 754 bits. The summary is informational and left
 // out. So a changed digit anywhere that matters (a scaler mean, a level, a
@@ -93,6 +96,7 @@ type fileModel struct {
 	Classes  []string     `json:"classes"`
 	Label    *string      `json:"label,omitempty"`    // version 2
 	Encoder  *fileEncoder `json:"encoder,omitempty"`  // version 2
+	Decision *Decision    `json:"decision,omitempty"` // version 2, when not zero
 	Features []string     `json:"features,omitempty"` // version 1
 	Scaler   *fileScaler  `json:"scaler,omitempty"`   // version 1
 	Summary  fileSummary  `json:"summary"`
@@ -191,7 +195,7 @@ func digestV1(specText string, classes, features []string, sc *fileScaler, raw [
 // digest returns the hex content digest of a version 2 file's parts (see
 // the format description above). Absent numbers (null or left out) count
 // as NaN.
-func digest(specText string, classes []string, label string, enc *fileEncoder, raw []byte) string {
+func digest(specText string, classes []string, label string, enc *fileEncoder, dec *Decision, raw []byte) string {
 	h := &hasher{h: sha256.New()}
 	h.text(specText)
 	h.list(classes)
@@ -214,6 +218,15 @@ func digest(specText string, classes []string, label string, enc *fileEncoder, r
 		num(t.Fill)
 		num(t.Mean)
 		num(t.Scale)
+	}
+	if dec == nil {
+		h.length(0, true)
+	} else {
+		h.length(4, false)
+		h.float(dec.Temperature)
+		h.floats(dec.Thresholds)
+		h.text(dec.Rule)
+		h.float(dec.Target)
 	}
 	return h.sum(raw)
 }
@@ -346,7 +359,11 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 		Classes: m.Classes, Label: &label, Encoder: toFileEncoder(m.enc),
 		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: base64.StdEncoding.EncodeToString(raw)},
 	}
-	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, raw)
+	if !m.Decision.IsZero() {
+		d := m.Decision
+		f.Decision = &d
+	}
+	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, f.Decision, raw)
 	s := m.Summary
 	f.Summary = fileSummary{
 		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status,
@@ -417,7 +434,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	label := ""
 	switch f.Version {
 	case 1:
-		if f.Encoder != nil || f.Label != nil {
+		if f.Encoder != nil || f.Label != nil || f.Decision != nil {
 			return nil, fmt.Errorf("%w: a version 1 file has no encoder or label", ErrFormat)
 		}
 		if digestV1(f.Spec, f.Classes, f.Features, f.Scaler, raw) != strings.ToLower(f.SHA256) {
@@ -431,7 +448,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 			return nil, fmt.Errorf("%w: the encoder or the label is missing", ErrFormat)
 		}
 		label = *f.Label
-		if digest(f.Spec, f.Classes, label, f.Encoder, raw) != strings.ToLower(f.SHA256) {
+		if digest(f.Spec, f.Classes, label, f.Encoder, f.Decision, raw) != strings.ToLower(f.SHA256) {
 			return nil, fmt.Errorf("%w: the contents do not match the file's sha256 (changed after it was written?)", ErrChecksum)
 		}
 		if enc, err = fromFileEncoder(f.Encoder); err != nil {
@@ -458,6 +475,9 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 		}
 	}
 	m := &Model{Spec: s, Params: params, Classes: f.Classes, Label: label, enc: enc}
+	if f.Decision != nil {
+		m.Decision = *f.Decision
+	}
 	fs := f.Summary
 	m.Summary = Summary{
 		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: fs.Status,

@@ -37,7 +37,7 @@ func (b *Binding) probs(row []encode.Value) (*rowScratch, error) {
 		return nil, err
 	}
 	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
 	if len(sc.out) == 1 && len(sc.probs) == 2 {
 		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
 	} else {
@@ -64,14 +64,15 @@ func (b *Binding) Probabilities(dst []float64, row []encode.Value) ([]float64, e
 	return dst, nil
 }
 
-// Predict returns the index in Classes of the most probable class of row.
+// Predict returns the index in Classes of the class decided for row, as
+// Model.Predict decides.
 // It allocates nothing after warm-up.
 func (b *Binding) Predict(row []encode.Value) (int, error) {
 	sc, err := b.probs(row)
 	if err != nil {
 		return -1, err
 	}
-	k := argmax(sc.probs)
+	k := b.m.decide(sc.probs)
 	b.m.pool.Put(sc)
 	return k, nil
 }
@@ -93,7 +94,7 @@ func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float6
 	}
 	dst = dst[:k]
 	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
 	if len(sc.out) == 1 && k == 2 {
 		dst[0], dst[1] = 1-sc.out[0], sc.out[0]
 	} else {
@@ -111,13 +112,13 @@ func (m *Model) PredictRecord(rec map[string]any) (int, error) {
 		return -1, err
 	}
 	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.Params, sc.in)
+	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
 	if len(sc.out) == 1 && len(m.Classes) == 2 {
 		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
 	} else {
 		copy(sc.probs, sc.out)
 	}
-	return argmax(sc.probs), nil
+	return m.decide(sc.probs), nil
 }
 
 // ProbabilitiesSet returns the class probabilities of every row of set, a
@@ -136,7 +137,7 @@ func (m *Model) ProbabilitiesSet(set *data.Set) (*mat.Dense, error) {
 	for start := 0; start < r; start += batchBlock {
 		n := min(batchBlock, r-start)
 		block := u.Slice(start, start+n, 0, m.net.Inputs()).(*mat.Dense)
-		o := m.net.Forward(sc.ws, m.Params, block)
+		o := m.net.Forward(sc.ws, m.fwd, block)
 		for i := 0; i < n; i++ {
 			oi, pi := o.RawRowView(i), out.RawRowView(start+i)
 			if len(oi) == 1 && len(pi) == 2 {

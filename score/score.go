@@ -15,6 +15,15 @@ type Class struct {
 	Precision float64 `json:"precision"`
 	Recall    float64 `json:"recall"`
 	F1        float64 `json:"f1"`
+	// ROCAUC and AveragePrecision rank the rows by the class's probability,
+	// one-vs-rest (see ROCArea and AveragePrecision); nil (JSON null) when
+	// the rows hold no positive or no negative of the class.
+	ROCAUC           *float64 `json:"roc_auc"`
+	AveragePrecision *float64 `json:"average_precision"`
+	// Threshold is the probability at or above which the class is decided
+	// (sigmoid outputs: multi-label, and class 1 of a binary model); nil
+	// where the decision is the most probable class.
+	Threshold *float64 `json:"threshold,omitempty"`
 }
 
 // Report is the fit of predictions to a data set.
@@ -28,7 +37,18 @@ type Report struct {
 	HammingLoss  *float64 `json:"hamming_loss,omitempty"` // multi-label only
 	PerClass     []Class  `json:"per_class"`
 	Multilabel   bool     `json:"multilabel"`
-	Threshold    float64  `json:"threshold,omitempty"` // multi-label decision threshold
+	Threshold    float64  `json:"threshold,omitempty"` // multi-label decision threshold when every class has the same one
+	// MacroROCAUC and MacroAveragePrecision are the means over the classes
+	// that have both positive and negative rows; nil when none has.
+	MacroROCAUC           *float64 `json:"macro_roc_auc"`
+	MacroAveragePrecision *float64 `json:"macro_average_precision"`
+	// ECE is the expected calibration error of ReliabilityDiagram (Guo et
+	// al. 2017) over 10 equal-width bins.
+	ECE float64 `json:"ece"`
+	// Ranking and Reliability hold the curves and bins behind the figures
+	// above, for plots; they are not written as JSON.
+	Ranking     *Rankings    `json:"-"`
+	Reliability *Reliability `json:"-"`
 }
 
 // Options set how predictions are turned into decisions.
@@ -38,6 +58,12 @@ type Options struct {
 	// Threshold is the probability at or above which a multi-label class is
 	// decided present; 0 means 0.5.
 	Threshold float64
+	// Thresholds, when set, are per-class operating thresholds: one per
+	// class for multi-label data (replacing Threshold), or one for a
+	// binary single-label model, applied to the probability of class 1
+	// (row decided as class 1 when p₁ ≥ t). Single-label models with more
+	// than two classes always take the most probable class.
+	Thresholds []float64
 }
 
 const floor = 1e-300
@@ -60,6 +86,25 @@ func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 	}
 	if th < 0 || th > 1 || math.IsNaN(th) {
 		return nil, fmt.Errorf("score: threshold %v is outside [0, 1]", th)
+	}
+	thr := make([]float64, k) // multi-label decision thresholds
+	for j := range thr {
+		thr[j] = th
+	}
+	binary := -1.0 // single-label binary threshold on class 1; < 0: none
+	switch {
+	case opt.Thresholds == nil:
+	case opt.Multilabel && len(opt.Thresholds) == k:
+		copy(thr, opt.Thresholds)
+	case !opt.Multilabel && k == 2 && len(opt.Thresholds) == 1:
+		binary = opt.Thresholds[0]
+	default:
+		return nil, fmt.Errorf("score: %d thresholds for %d classes (multi-label %v)", len(opt.Thresholds), k, opt.Multilabel)
+	}
+	for _, t := range opt.Thresholds {
+		if !(t >= 0 && t <= 1) {
+			return nil, fmt.Errorf("score: threshold %v is outside [0, 1]", t)
+		}
 	}
 	r := &Report{Rows: m, Classes: classes, Multilabel: opt.Multilabel, PerClass: make([]Class, k)}
 	tp := make([]int, k)
@@ -86,7 +131,7 @@ func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 			exact := true
 			for j := 0; j < k; j++ {
 				pv, yv := p.At(i, j), y.At(i, j) > 0.5
-				dec := pv >= th
+				dec := pv >= thr[j]
 				if yv {
 					ce -= math.Log(math.Max(pv, floor))
 					r.PerClass[j].Rows++
@@ -110,6 +155,12 @@ func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 			continue
 		}
 		truth, pred := argmaxRow(y, i, k), argmaxRow(p, i, k)
+		if binary >= 0 {
+			pred = 0
+			if p.At(i, 1) >= binary {
+				pred = 1
+			}
+		}
 		ce -= math.Log(math.Max(p.At(i, truth), floor))
 		r.Confusion[truth][pred]++
 		r.PerClass[truth].Rows++
@@ -133,9 +184,38 @@ func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 	if opt.Multilabel {
 		h := float64(wrong) / float64(m*k)
 		r.HammingLoss = &h
-		r.Threshold = th
+		if opt.Thresholds == nil {
+			r.Threshold = th
+		}
+		for j := range r.PerClass {
+			r.PerClass[j].Threshold = nullable(thr[j])
+		}
+	} else if binary >= 0 {
+		r.PerClass[1].Threshold = nullable(binary)
 	}
+	rk, err := Rank(p, y, classes)
+	if err != nil {
+		return nil, err
+	}
+	for j := range r.PerClass {
+		r.PerClass[j].ROCAUC = nullable(rk.PerClass[j].ROCAUC)
+		r.PerClass[j].AveragePrecision = nullable(rk.PerClass[j].AveragePrecision)
+	}
+	r.MacroROCAUC, r.MacroAveragePrecision = nullable(rk.MacroROCAUC), nullable(rk.MacroAveragePrecision)
+	rel, err := ReliabilityDiagram(p, y, classes, opt.Multilabel)
+	if err != nil {
+		return nil, err
+	}
+	r.ECE, r.Ranking, r.Reliability = rel.ECE, rk, rel
 	return r, nil
+}
+
+// nullable returns nil for NaN (written as JSON null), else &v.
+func nullable(v float64) *float64 {
+	if math.IsNaN(v) {
+		return nil
+	}
+	return &v
 }
 
 func ratio(a, b int) float64 {

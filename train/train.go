@@ -118,15 +118,15 @@ type Prepared struct {
 func Prepare(s *spec.Network, set, holdout *data.Set, noScale bool) (*Prepared, error) {
 	enc, warn, err := encode.Fit(s, set, encode.Options{NoScale: noScale})
 	if err != nil {
-		return nil, fmt.Errorf("train: fitting the encoder on the training rows: %w", err)
+		return nil, fmt.Errorf("%w: fitting the encoder on the training rows: %w", ErrConfig, err)
 	}
 	p := &Prepared{Encoder: enc, Spec: enc.Resolve(s), Warnings: warn}
 	if p.X, err = enc.EncodeSet(set); err != nil {
-		return nil, fmt.Errorf("train: training rows: %w", err)
+		return nil, fmt.Errorf("%w: training rows: %w", ErrConfig, err)
 	}
 	if holdout != nil {
 		if p.HoldoutX, err = enc.EncodeSet(holdout); err != nil {
-			return nil, fmt.Errorf("train: holdout rows: %w", err)
+			return nil, fmt.Errorf("%w: holdout rows: %w", ErrConfig, err)
 		}
 	}
 	return p, nil
@@ -136,16 +136,7 @@ func Prepare(s *spec.Network, set, holdout *data.Set, noScale bool) (*Prepared, 
 // inputs have levels: everything but the widths that the training rows
 // decide is checked.
 func CheckSpec(s *spec.Network) error {
-	c := s
-	if !s.Resolved() {
-		c = s.Clone()
-		for i := range c.Types {
-			if c.Types[i].Units() == 0 {
-				c.Types[i].Levels = []string{"a", "b"}
-			}
-		}
-	}
-	_, err := nn.Compile(c)
+	_, err := nn.Compile(encode.Placeholder(s))
 	return err
 }
 
@@ -190,7 +181,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 
 	prep, err := Prepare(s, set, cfg.Holdout, cfg.NoScale)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
+		return nil, err
 	}
 	x, hx, warn := prep.X, prep.HoldoutX, prep.Warnings
 	net, err := nn.Compile(prep.Spec)

@@ -79,7 +79,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	}
 	rep, err := evaluate(m, set, *threshold)
 	if err != nil {
-		return fmt.Errorf("%s: %w", *dataPath, err)
+		return prefixLines(*dataPath, err)
 	}
 	if *plot != "" {
 		title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))

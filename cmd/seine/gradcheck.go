@@ -11,9 +11,11 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
+	"github.com/seine-ml/seine/train"
 )
 
 // gradTolerance is the largest relative error that passes. optim's
@@ -73,8 +75,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	net, err := nn.Compile(s)
-	if err != nil {
+	if err := train.CheckSpec(s); err != nil {
 		return fmt.Errorf("%s: %w", *specPath, err)
 	}
 	var x, y *mat.Dense
@@ -84,10 +85,22 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 		if err != nil {
 			return err
 		}
-		x, y = firstRows(set, *rows)
+		sub := firstRows(set, *rows)
+		prep, err := train.Prepare(s, sub, nil, false)
+		if err != nil {
+			return prefixLines(*dataPath, err)
+		}
+		s, x, y = prep.Spec, prep.X, sub.Y
 		source = *dataPath
 	} else {
+		// Random rows of the net's input units; category levels still to
+		// be learned count as two units each.
+		s = encode.Placeholder(s)
 		x, y = randomRows(s, *rows, *seed)
+	}
+	net, err := nn.Compile(s)
+	if err != nil {
+		return fmt.Errorf("%s: %w", *specPath, err)
 	}
 	obj, err := nn.NewObjective(net, x, y, nn.ObjectiveOptions{Workers: 1})
 	if err != nil {
@@ -165,17 +178,13 @@ func paramName(net *nn.Net, i int) (layer int, name string) {
 
 // firstRows returns the first n rows of set (all when it has fewer), with
 // the features standardized on those rows.
-func firstRows(set *data.Set, n int) (x, y *mat.Dense) {
+func firstRows(set *data.Set, n int) *data.Set {
 	n = min(n, set.Rows())
 	idx := make([]int, n)
 	for i := range idx {
 		idx[i] = i
 	}
-	sub := set.Subset(idx)
-	sc, _ := data.FitScaler(sub.X)
-	x = mat.DenseCopyOf(sub.X)
-	sc.Transform(x, x)
-	return x, sub.Y
+	return set.Subset(idx)
 }
 
 // randomRows draws n rows of standard normal features and random targets:
@@ -184,10 +193,11 @@ func firstRows(set *data.Set, n int) (x, y *mat.Dense) {
 func randomRows(s *spec.Network, n int, seed uint64) (x, y *mat.Dense) {
 	rng := rand.New(rand.NewPCG(seed, 0x5e1e))
 	k := len(s.Output.Classes)
-	x = mat.NewDense(n, s.Inputs, nil)
+	w := s.Width()
+	x = mat.NewDense(n, w, nil)
 	y = mat.NewDense(n, k, nil)
 	for i := 0; i < n; i++ {
-		for j := 0; j < s.Inputs; j++ {
+		for j := 0; j < w; j++ {
 			x.Set(i, j, rng.NormFloat64())
 		}
 		if s.Output.Multilabel {

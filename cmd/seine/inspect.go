@@ -69,18 +69,9 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	if *rows > 0 {
 		train = *rows
 	}
-	shown := s
-	if !s.Resolved() {
-		// Levels to be learned from the training rows: count two per
-		// category to show the rest of the net.
-		shown = s.Clone()
-		for i := range shown.Types {
-			if shown.Types[i].Units() == 0 {
-				shown.Types[i].Levels = []string{"?1", "?2"}
-			}
-		}
-	}
-	net, err := nn.Compile(shown)
+	// Levels still to be learned from the training rows count as two per
+	// category, to show the rest of the net.
+	net, err := nn.Compile(encode.Placeholder(s))
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}

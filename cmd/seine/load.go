@@ -83,7 +83,7 @@ func loadData(path string, opt data.CSVOptions) (*data.Set, error) {
 	defer f.Close()
 	set, err := data.ReadCSV(f, opt)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
+		return nil, prefixLines(path, err) // one problem per line, each naming the file
 	}
 	if set.Rows() == 0 {
 		return nil, fmt.Errorf("%s: %w", path, data.ErrEmpty)

@@ -81,7 +81,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	}
 	p, err := m.ProbabilitiesSet(set)
 	if err != nil {
-		return fmt.Errorf("%s: %w", *dataPath, err)
+		return prefixLines(*dataPath, err)
 	}
 	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, *threshold) }
 	if *out == "" {

@@ -287,7 +287,9 @@ func resumeParams(path string, s *spec.Network) ([]float64, error) {
 	if err != nil {
 		return nil, fmt.Errorf("-resume: %w", err)
 	}
-	if got, want := netShape(m.Spec), netShape(s); got != want {
+	// Category levels are learned from the data: compare against the spec
+	// with the model's levels, as training on the same rows resolves it.
+	if got, want := netShape(m.Spec), netShape(m.Encoder().Resolve(s)); got != want {
 		return nil, fmt.Errorf("-resume %s: its net is %s, the spec's is %s", path, got, want)
 	}
 	if strings.Join(m.Classes, ",") != strings.Join(s.Output.Classes, ",") {
@@ -297,10 +299,16 @@ func resumeParams(path string, s *spec.Network) ([]float64, error) {
 }
 
 // netShape describes the layers of s in one line, e.g.
-// "16 → 24 tanh → 5 softmax".
+// "16 → 24 tanh → 5 softmax", starting with the input units (the encoded
+// width; for a spec whose category levels are still to be learned, the raw
+// input count and "inputs").
 func netShape(s *spec.Network) string {
 	var b strings.Builder
-	fmt.Fprint(&b, s.Inputs)
+	if w := s.Width(); w > 0 {
+		fmt.Fprint(&b, w)
+	} else {
+		fmt.Fprintf(&b, "%d inputs", s.Inputs)
+	}
 	for _, l := range s.Hidden {
 		fmt.Fprintf(&b, " → %d %s", l.Units, l.Activation)
 	}

@@ -29,7 +29,7 @@ func TestTrainErrors(t *testing.T) {
 		{"missing spec", "testdata/nope.yaml", triageData, nil, []string{"spec file testdata/nope.yaml", "no such file"}},
 		{"missing data", triageSpec, "testdata/nope.csv", nil, []string{"data file testdata/nope.csv", "no such file"}},
 		{"bad spec", "testdata/bad_activation.yaml", triageData, nil, []string{"testdata/bad_activation.yaml:5:17", "hidden[0].activation", `"tanhh"`}},
-		{"feature count", "testdata/four_inputs.yaml", triageData, nil, []string{"sessions.csv", "16 feature columns, expected 4"}},
+		{"feature count", "testdata/four_inputs.yaml", triageData, nil, []string{"sessions.csv", "17 feature columns, expected 4"}},
 		{"missing feature", "testdata/missing_feature.yaml", triageData, nil, []string{"sessions.csv", "bogus_column"}},
 		{"unknown label", triageSpec, "testdata/unknown_label.csv", nil, []string{"unknown_label.csv: line 3 (row 2)", `"kind"`, `"robot"`}},
 		{"NaN", triageSpec, "testdata/nan.csv", nil, []string{"nan.csv: line 4 (row 3)", `"error_share"`}},
@@ -133,7 +133,7 @@ func TestTrainOverrides(t *testing.T) {
 	if sm.TrainRows != 2400 || sm.HoldoutRows != 600 || sm.Iterations != 4 || sm.Method != "adam" {
 		t.Errorf("summary %+v", sm)
 	}
-	for _, w := range []string{"2400 training, 600 holdout", "16 → 24 tanh → 5 softmax, 533 params", "adam, 4 iterations", "reached the iteration limit", "kept"} {
+	for _, w := range []string{"2400 training, 600 holdout", "21 → 24 tanh → 5 softmax, 653 params", "adam, 4 iterations", "reached the iteration limit", "kept"} {
 		if !strings.Contains(r.stdout, w) {
 			t.Errorf("summary lacks %q:\n%s", w, r.stdout)
 		}

@@ -2,13 +2,17 @@
 // with the session-triage model compiled into it (SYNTHETIC training data,
 // see examples/triage).
 //
-//	POST /classify  {"features": {"req_per_min": 3.1, ...}}  one session by feature name
-//	                {"rows": [[3.1, 0.02, ...], ...]}        sessions as rows in feature order
-//	GET  /healthz   the model's classes and features
+//	POST /classify  {"features": {"req_per_min": 3.1, "agent_family": "browser", "resp_kb": null, ...}}
+//	                    one session by input name, with raw values: numbers,
+//	                    strings for category inputs, null for a missing value
+//	                {"rows": [[3.1, 0.02, ...], ...]}  sessions as rows in the model's input order
+//	GET  /healthz   the model's classes and inputs
 //	POST /reload    re-read the model file given by -model and swap it in
 //
-// Bad requests get status 400 and a JSON body {"field": ..., "error": ...}
-// naming the offending field, e.g. "features.req_per_min" or "rows[2][5]".
+// The model's own encoder turns the raw values into the net's inputs, as in
+// training: a missing value is filled by its input's rule, or refused. Bad
+// requests get status 400 and a JSON body {"field": ..., "error": ...}
+// naming the offending field, e.g. "features.agent_family" or "rows[2][5]".
 //
 // The model sits behind an atomic.Pointer: a request loads it once and
 // uses that model to the end, so a reload never mixes two models in one
@@ -32,10 +36,12 @@ import (
 	"net/http"
 	"os"
 	"os/signal"
+	"slices"
 	"sync/atomic"
 	"syscall"
 	"time"
 
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 )
 
@@ -77,9 +83,24 @@ func run(ctx context.Context, addr, modelPath string, logger *log.Logger) error 
 
 // server answers classification requests with the current model.
 type server struct {
-	model     atomic.Pointer[nn.Model]
+	model     atomic.Pointer[served]
 	modelPath string // file re-read by /reload; "" means the embedded model, no reload
 	logger    *log.Logger
+}
+
+// served is a model with its inputs bound in the order requests use.
+type served struct {
+	m *nn.Model
+	b *nn.Binding
+}
+
+// serve binds m's inputs in their own order.
+func bind(m *nn.Model) (*served, error) {
+	b, err := m.Bind(m.Features)
+	if err != nil {
+		return nil, err
+	}
+	return &served{m: m, b: b}, nil
 }
 
 // newServer loads the model from modelPath, or the embedded one when
@@ -99,7 +120,11 @@ func newServer(modelPath string, logger *log.Logger) (*server, error) {
 	if err != nil {
 		return nil, err
 	}
-	s.model.Store(m)
+	sv, err := bind(m)
+	if err != nil {
+		return nil, err
+	}
+	s.model.Store(sv)
 	return s, nil
 }
 
@@ -147,8 +172,9 @@ func (s *server) serve(ctx context.Context, ln net.Listener) error {
 const maxBody = 1 << 20
 
 func (s *server) classify(w http.ResponseWriter, r *http.Request) {
-	m := s.model.Load() // one model for the whole request
-	rows, single, ferr := parseRequest(http.MaxBytesReader(w, r.Body, maxBody), m.Features, m.Inputs())
+	sv := s.model.Load() // one model for the whole request
+	m := sv.m
+	rows, single, ferr := parseRequest(http.MaxBytesReader(w, r.Body, maxBody), m.Features)
 	if ferr != nil {
 		status := http.StatusBadRequest
 		var tooBig *http.MaxBytesError
@@ -159,13 +185,30 @@ func (s *server) classify(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	results := make([]result, len(rows))
+	p := make([]float64, len(m.Classes))
 	for i, x := range rows {
-		p := m.Probabilities(nil, x)
+		p, err := sv.b.Probabilities(p, x)
+		if err != nil {
+			field := "features"
+			var fe *encode.FieldError
+			if errors.As(err, &fe) {
+				field += "." + fe.Field
+				if !single {
+					field = fmt.Sprintf("rows[%d][%d]", i, slices.Index(m.Features, fe.Field))
+				}
+			}
+			writeError(w, http.StatusBadRequest, field, fmt.Sprintf("%s: %v", field, errors.Unwrap(err)))
+			return
+		}
 		probs := make(map[string]float64, len(p))
+		best := 0
 		for k, v := range p {
 			probs[m.Classes[k]] = v
+			if v > p[best] {
+				best = k
+			}
 		}
-		results[i] = result{Class: m.Classes[m.Predict(x)], Probabilities: probs}
+		results[i] = result{Class: m.Classes[best], Probabilities: probs}
 	}
 	if single {
 		writeJSON(w, http.StatusOK, results[0])
@@ -183,11 +226,21 @@ type result struct {
 }
 
 func (s *server) healthz(w http.ResponseWriter, r *http.Request) {
-	m := s.model.Load()
+	m := s.model.Load().m
+	type input struct {
+		Name   string   `json:"name"`
+		Type   string   `json:"type"`
+		Levels []string `json:"levels,omitempty"`
+	}
+	var inputs []input
+	for _, in := range m.Encoder().Inputs() {
+		inputs = append(inputs, input{Name: in.Name, Type: in.Type.String(), Levels: in.Levels})
+	}
 	writeJSON(w, http.StatusOK, map[string]any{
 		"status":   "ok",
 		"classes":  m.Classes,
 		"features": m.Features,
+		"inputs":   inputs,
 		"params":   len(m.Params),
 	})
 }
@@ -205,7 +258,12 @@ func (s *server) reload(w http.ResponseWriter, r *http.Request) {
 		writeError(w, http.StatusInternalServerError, "model", fmt.Sprintf("model: reload failed, previous model kept: %v", err))
 		return
 	}
-	s.model.Store(m)
+	sv, err := bind(m)
+	if err != nil {
+		writeError(w, http.StatusInternalServerError, "model", fmt.Sprintf("model: reload failed, previous model kept: %v", err))
+		return
+	}
+	s.model.Store(sv)
 	s.logger.Printf("reloaded %s", s.modelPath)
 	writeJSON(w, http.StatusOK, map[string]any{"status": "reloaded", "params": len(m.Params)})
 }

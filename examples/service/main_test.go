@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -12,6 +13,8 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -47,15 +50,71 @@ func embeddedModel(t *testing.T) *nn.Model {
 	return m
 }
 
-// triageRows reads the SYNTHETIC triage data with the model's features.
+// triageRows reads the SYNTHETIC triage data with the model's inputs, as
+// `seine evaluate` does.
 func triageRows(t *testing.T, m *nn.Model) *data.Set {
 	t.Helper()
 	f, err := os.Open(filepath.Join("..", "triage", "sessions.csv"))
 	require.NoError(t, err)
 	defer f.Close()
-	set, err := data.ReadCSV(f, data.CSVOptions{Classes: m.Classes, Features: m.Features})
+	enc := m.Encoder()
+	set, err := data.ReadCSV(f, data.CSVOptions{Classes: m.Classes, Columns: enc.Columns(), MissingTokens: enc.MissingTokens(), Label: m.Label})
 	require.NoError(t, err)
 	return set
+}
+
+// rawRows returns the first n rows of the triage data as a client would
+// send them: one JSON value per model input, in model order — a number, the
+// agent_family text, or null for an empty cell.
+func rawRows(t *testing.T, m *nn.Model, n int) [][]any {
+	t.Helper()
+	f, err := os.Open(filepath.Join("..", "triage", "sessions.csv"))
+	require.NoError(t, err)
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	require.NoError(t, err)
+	col := map[string]int{}
+	for j, h := range recs[0] {
+		col[h] = j
+	}
+	rows := make([][]any, n)
+	for i := range rows {
+		rows[i] = make([]any, len(m.Features))
+		for j, name := range m.Features {
+			cell := recs[i+1][col[name]]
+			switch v, err := strconv.ParseFloat(cell, 64); {
+			case cell == "":
+				rows[i][j] = nil
+			case err == nil:
+				rows[i][j] = v
+			default:
+				rows[i][j] = cell
+			}
+		}
+	}
+	return rows
+}
+
+// codedRows returns the first n rows of the triage data coded for m (see
+// encode.Encoder.CodeSet), for the model's own float64 methods.
+func codedRows(t *testing.T, m *nn.Model, n int) *mat.Dense {
+	t.Helper()
+	coded, err := m.Encoder().CodeSet(triageRows(t, m))
+	require.NoError(t, err)
+	return mat.DenseCopyOf(coded.Slice(0, n, 0, m.Inputs()))
+}
+
+// validRow is a JSON row of the model's inputs: v for every number and
+// "browser" for agent_family.
+func validRow(m *nn.Model, v string) string {
+	vals := make([]string, len(m.Features))
+	for j, f := range m.Features {
+		vals[j] = v
+		if f == "agent_family" {
+			vals[j] = `"browser"`
+		}
+	}
+	return strings.Join(vals, ",")
 }
 
 func post(t *testing.T, url, body string) (int, []byte) {
@@ -84,14 +143,14 @@ func TestClassifyRows(t *testing.T) {
 	require.NoError(t, err)
 	url := startServer(t, s)
 	m := embeddedModel(t)
-	set := triageRows(t, m)
 
 	const n = 200
+	raw, coded := rawRows(t, m, n), codedRows(t, m, n)
 	rows := make([][]float64, n)
 	for i := range rows {
-		rows[i] = mat.Row(nil, i, set.X)
+		rows[i] = coded.RawRowView(i)
 	}
-	status, body := post(t, url+"/classify", mustJSON(t, map[string]any{"rows": rows}))
+	status, body := post(t, url+"/classify", mustJSON(t, map[string]any{"rows": raw}))
 	require.Equal(t, http.StatusOK, status, string(body))
 	var got struct{ Results []result }
 	require.NoError(t, json.Unmarshal(body, &got))
@@ -108,20 +167,22 @@ func TestClassifyRows(t *testing.T) {
 	}
 }
 
-// TestClassifyFeatures posts one session by feature name, in an order
-// other than the model's.
+// TestClassifyFeatures posts one session by input name (a JSON object, so
+// in no particular order), with raw values: numbers, the agent_family
+// text, null for the missing cells of rows 25 and 26 (resp_kb).
 func TestClassifyFeatures(t *testing.T) {
 	s, err := newServer("", nil)
 	require.NoError(t, err)
 	url := startServer(t, s)
 	m := embeddedModel(t)
-	set := triageRows(t, m)
+	raw, coded := rawRows(t, m, 1000), codedRows(t, m, 1000)
+	require.Nil(t, raw[25][slices.Index(m.Features, "resp_kb")], "sessions.csv line 27 has no resp_kb")
 
-	for _, i := range []int{0, 1, 2, 3, 4, 57, 999} {
-		row := mat.Row(nil, i, set.X)
-		feats := make(map[string]float64, len(row))
+	for _, i := range []int{0, 1, 2, 3, 4, 25, 57, 999} {
+		row := coded.RawRowView(i)
+		feats := make(map[string]any, len(row))
 		for j, name := range m.Features {
-			feats[name] = row[j]
+			feats[name] = raw[i][j]
 		}
 		status, body := post(t, url+"/classify", mustJSON(t, map[string]any{"features": feats}))
 		require.Equal(t, http.StatusOK, status, string(body))
@@ -148,6 +209,9 @@ func TestBadRequests(t *testing.T) {
 		first := true
 		for _, f := range m.Features {
 			v := "1.5"
+			if f == "agent_family" {
+				v = `"browser"`
+			}
 			if f == name {
 				if raw == "" {
 					continue
@@ -163,7 +227,7 @@ func TestBadRequests(t *testing.T) {
 		b.WriteString("}}")
 		return b.String()
 	}
-	row := strings.TrimSuffix(strings.Repeat("1,", m.Inputs()), ",")
+	row := validRow(m, "1")
 	tests := []struct {
 		name   string
 		body   string
@@ -184,10 +248,14 @@ func TestBadRequests(t *testing.T) {
 		{"string NaN", feats("error_share", `"NaN"`), 400, "features.error_share"},
 		{"bare Infinity", feats("resp_kb", "-Infinity"), 400, "features.resp_kb"},
 		{"beyond float64", feats("session_min", "1e999"), 400, "features.session_min"},
-		{"null", feats("night_share", "null"), 400, "features.night_share"},
+		{"null where refused", feats("night_share", "null"), 400, "features.night_share"},
+		{"text for a number", feats("req_per_min", `"fast"`), 400, "features.req_per_min"},
+		{"number for a category", feats("agent_family", "3"), 400, "features.agent_family"},
+		{"a list", feats("agent_family", `["cli"]`), 400, "features.agent_family"},
+		{"rows category as number", `{"rows": [[` + strings.Replace(row, `"browser"`, "2", 1) + `]]}`, 400, fmt.Sprintf("rows[0][%d]", slices.Index(m.Features, "agent_family"))},
 		{"features not an object", `{"features": [1]}`, 400, "features"},
 		{"rows NaN", `{"rows": [[` + row + `], [1, 1, NaN]]}`, 400, "rows[1][2]"},
-		{"rows string", `{"rows": [["1"]]}`, 400, "rows[0][0]"},
+		{"rows boolean", `{"rows": [[true]]}`, 400, "rows[0][0]"},
 		{"short row", `{"rows": [[1, 2, 3]]}`, 400, "rows[0]"},
 		{"long row", `{"rows": [[` + row + `, 1]]}`, 400, "rows[0]"},
 		{"no rows", `{"rows": []}`, 400, "rows"},
@@ -230,8 +298,8 @@ func TestRoutes(t *testing.T) {
 	require.NoError(t, json.NewDecoder(resp.Body).Decode(&h))
 	assert.Equal(t, "ok", h.Status)
 	assert.Equal(t, []string{"human", "crawler", "scraper", "stuffer", "monitor"}, h.Classes)
-	assert.Len(t, h.Features, 16)
-	assert.Equal(t, 533, h.Params)
+	assert.Len(t, h.Features, 17)
+	assert.Equal(t, 653, h.Params)
 
 	status, body := post(t, url+"/reload", "")
 	assert.Equal(t, http.StatusConflict, status, "no -model: nothing to reload")
@@ -248,7 +316,7 @@ func TestReload(t *testing.T) {
 	s, err := newServer(path, nil)
 	require.NoError(t, err)
 	url := startServer(t, s)
-	req := `{"rows": [[` + strings.TrimSuffix(strings.Repeat("1,", m.Inputs()), ",") + `]]}`
+	req := `{"rows": [[` + validRow(m, "1") + `]]}`
 
 	classify := func() result {
 		status, body := post(t, url+"/classify", req)
@@ -286,7 +354,7 @@ func TestReloadUnderLoad(t *testing.T) {
 	s, err := newServer(path, nil)
 	require.NoError(t, err)
 	url := startServer(t, s)
-	req := `{"rows": [[` + strings.TrimSuffix(strings.Repeat("2,", m.Inputs()), ",") + `]]}`
+	req := `{"rows": [[` + validRow(m, "2") + `]]}`
 
 	var wg sync.WaitGroup
 	errs := make(chan error, 100)
@@ -328,7 +396,9 @@ func TestReloadUnderLoad(t *testing.T) {
 func TestEmbeddedModelScores(t *testing.T) {
 	m := embeddedModel(t)
 	set := triageRows(t, m)
-	pred := m.PredictBatch(nil, set.X)
+	coded, err := m.Encoder().CodeSet(set)
+	require.NoError(t, err)
+	pred := m.PredictBatch(nil, coded)
 	right := 0
 	for i, c := range set.Labels() {
 		if pred[i] == c {

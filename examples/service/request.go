@@ -9,6 +9,8 @@ import (
 	"net/http"
 	"strconv"
 	"strings"
+
+	"github.com/seine-ml/seine/encode"
 )
 
 // maxRows is the most rows one request may carry.
@@ -27,15 +29,18 @@ func (e *fieldError) Error() string { return e.field + ": " + e.msg }
 
 // parseRequest reads a classify request,
 //
-//	{"features": {"<name>": <number>, ...}}   every feature of the model, by name
-//	{"rows": [[<number>, ...], ...]}          1 … maxRows rows of inputs values each
+//	{"features": {"<name>": <value>, ...}}   every input of the model, by name
+//	{"rows": [[<value>, ...], ...]}          1 … maxRows rows of inputs values each, in model order
 //
-// and returns its rows of raw features in model order; single reports the
-// "features" form. Numbers must be finite: JSON has no NaN or Infinity, and
-// a string, null or a number beyond the float64 range is refused. The body
-// is read token by token, so that even a syntax error (say a bare NaN) is
-// reported at the field where it occurs.
-func parseRequest(r io.Reader, features []string, inputs int) (rows [][]float64, single bool, ferr *fieldError) {
+// where a value is a number, a string (a category's level, e.g. "browser")
+// or null (a missing value, filled by the input's rule or refused). It
+// returns the rows of raw values in model order; single reports the
+// "features" form. JSON has no NaN or Infinity, and a number beyond the
+// float64 range is refused. The body is read token by token, so that even
+// a syntax error (say a bare NaN) is reported at the field where it occurs.
+// Whether each value suits its input is the model's to say (see classify).
+func parseRequest(r io.Reader, features []string) (rows [][]encode.Value, single bool, ferr *fieldError) {
+	inputs := len(features)
 	p := parser{dec: json.NewDecoder(r)}
 	p.dec.UseNumber()
 	if ferr := p.open('{', "body", "a JSON object"); ferr != nil {
@@ -57,7 +62,7 @@ func parseRequest(r io.Reader, features []string, inputs int) (rows [][]float64,
 			if ferr != nil {
 				return nil, false, ferr
 			}
-			rows, single = [][]float64{row}, true
+			rows, single = [][]encode.Value{row}, true
 		case "rows":
 			if gotRows {
 				return nil, false, &fieldError{field: key, msg: "given twice"}
@@ -142,36 +147,37 @@ func (p *parser) key(field string) (string, *fieldError) {
 	return key, nil
 }
 
-// number reads one finite number.
-func (p *parser) number(field string) (float64, *fieldError) {
+// value reads one raw value: a finite number, a string, or null.
+func (p *parser) value(field string) (encode.Value, *fieldError) {
 	tok, err := p.dec.Token()
 	if err != nil {
-		return 0, p.fail(field, err)
+		return encode.Missing, p.fail(field, err)
 	}
-	n, ok := tok.(json.Number)
-	if !ok {
-		return 0, &fieldError{field: field, msg: "want a number, got " + describe(tok)}
+	switch t := tok.(type) {
+	case nil:
+		return encode.Missing, nil
+	case string:
+		return encode.Text(t), nil
+	case json.Number:
+		v, err := strconv.ParseFloat(string(t), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return encode.Missing, &fieldError{field: field, msg: fmt.Sprintf("%s is not a finite number", t)}
+		}
+		return encode.Number(v), nil
 	}
-	v, err := strconv.ParseFloat(string(n), 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, &fieldError{field: field, msg: fmt.Sprintf("%s is not a finite number", n)}
-	}
-	return v, nil
+	return encode.Missing, &fieldError{field: field, msg: "want a number, a string or null, got " + describe(tok)}
 }
 
-// features reads {"<name>": <number>, ...} holding every feature once.
-func (p *parser) features(names []string) ([]float64, *fieldError) {
-	if len(names) == 0 {
-		return nil, &fieldError{field: "features", msg: `the model has no feature names; send "rows"`}
-	}
-	if ferr := p.open('{', "features", "an object of feature values by name"); ferr != nil {
+// features reads {"<name>": <value>, ...} holding every input once.
+func (p *parser) features(names []string) ([]encode.Value, *fieldError) {
+	if ferr := p.open('{', "features", "an object of input values by name"); ferr != nil {
 		return nil, ferr
 	}
 	col := make(map[string]int, len(names))
 	for j, name := range names {
 		col[name] = j
 	}
-	row := make([]float64, len(names))
+	row := make([]encode.Value, len(names))
 	seen := make([]bool, len(names))
 	for p.dec.More() {
 		name, ferr := p.key("features")
@@ -181,13 +187,13 @@ func (p *parser) features(names []string) ([]float64, *fieldError) {
 		field := "features." + name
 		j, ok := col[name]
 		if !ok {
-			return nil, &fieldError{field: field, msg: "unknown feature; want one of " + strings.Join(names, ", ")}
+			return nil, &fieldError{field: field, msg: "unknown input; want one of " + strings.Join(names, ", ")}
 		}
 		if seen[j] {
 			return nil, &fieldError{field: field, msg: "given twice"}
 		}
 		seen[j] = true
-		if row[j], ferr = p.number(field); ferr != nil {
+		if row[j], ferr = p.value(field); ferr != nil {
 			return nil, ferr
 		}
 	}
@@ -201,32 +207,32 @@ func (p *parser) features(names []string) ([]float64, *fieldError) {
 		}
 	}
 	if len(missing) > 0 {
-		return nil, &fieldError{field: "features." + missing[0], msg: "missing (all missing: " + strings.Join(missing, ", ") + ")"}
+		return nil, &fieldError{field: "features." + missing[0], msg: "absent (all absent: " + strings.Join(missing, ", ") + "); send null for a missing value"}
 	}
 	return row, nil
 }
 
-// rows reads [[<number>, ...], ...], each row of exactly inputs numbers.
-func (p *parser) rows(inputs int) ([][]float64, *fieldError) {
+// rows reads [[<value>, ...], ...], each row of exactly inputs values.
+func (p *parser) rows(inputs int) ([][]encode.Value, *fieldError) {
 	if ferr := p.open('[', "rows", "an array of rows"); ferr != nil {
 		return nil, ferr
 	}
-	var rows [][]float64
+	var rows [][]encode.Value
 	for p.dec.More() {
 		i := len(rows)
 		if i == maxRows {
 			return nil, &fieldError{field: "rows", msg: fmt.Sprintf("more than %d rows", maxRows)}
 		}
 		field := fmt.Sprintf("rows[%d]", i)
-		if ferr := p.open('[', field, "an array of numbers"); ferr != nil {
+		if ferr := p.open('[', field, "an array of values"); ferr != nil {
 			return nil, ferr
 		}
-		row := make([]float64, 0, inputs)
+		row := make([]encode.Value, 0, inputs)
 		for p.dec.More() {
 			if len(row) == inputs {
 				return nil, &fieldError{field: field, msg: fmt.Sprintf("more than %d values", inputs)}
 			}
-			v, ferr := p.number(fmt.Sprintf("%s[%d]", field, len(row)))
+			v, ferr := p.value(fmt.Sprintf("%s[%d]", field, len(row)))
 			if ferr != nil {
 				return nil, ferr
 			}

@@ -1,6 +1,9 @@
 // Package chart draws seine's diagnostics as PNG or SVG images: cost
 // against evaluations and wall time, performance profiles, confusion
-// matrices, penalty sweeps and learning curves.
+// matrices, penalty sweeps, learning curves, ROC and precision–recall
+// curves with their operating points, and reliability diagrams. SVG
+// output has <svg> as its document element, so it can be inlined in an
+// HTML page.
 //
 // Every chart writes to an io.Writer in a Format; FormatOf picks the
 // Format from a file name's extension so that callers at the edge can

@@ -26,7 +26,9 @@ import (
 	"strconv"
 )
 
-// features lists the columns in file order, with what each one measures.
+// features lists the number columns in file order, with what each one
+// measures. The category column agent_family (see agentFamilies) follows
+// the first.
 var features = []struct{ name, meaning string }{
 	{"req_per_min", "requests per minute over the session"},
 	{"error_share", "share of responses with status 4xx or 5xx"},
@@ -46,11 +48,17 @@ var features = []struct{ name, meaning string }{
 	{"revisit_share", "share of requests for a path already requested in the session"},
 }
 
-// kind is one class of client, with its share of sessions.
+// agentFamilies are the levels of the category column agent_family: what
+// the client's User-Agent header claims to be.
+var agentFamilies = []string{"browser", "mobile-app", "cli", "library"}
+
+// kind is one class of client, with its share of sessions and the shares of
+// the agent families it claims (in the order of agentFamilies).
 type kind struct {
-	name  string
-	share float64
-	draw  func(r *rand.Rand, f []float64)
+	name   string
+	share  float64
+	draw   func(r *rand.Rand, f []float64)
+	agents [4]float64
 }
 
 // Helpers for the class-conditional distributions.
@@ -119,7 +127,7 @@ var kinds = []kind{
 		f[13] = beta(r, 0.01, 50)
 		f[14] = 2.2 + 0.6*r.NormFloat64()
 		f[15] = beta(r, 0.3, 10)
-	}},
+	}, [4]float64{0.85, 0.13, 0.01, 0.01}},
 	{"crawler", 0.16, func(r *rand.Rand, f []float64) {
 		f[0] = logn(r, 2.6, 0.7)
 		f[1] = beta(r, 0.09, 30)
@@ -137,7 +145,7 @@ var kinds = []kind{
 		f[13] = beta(r, 0.06, 20)
 		f[14] = 3.0 + 0.9*r.NormFloat64()
 		f[15] = beta(r, 0.04, 30)
-	}},
+	}, [4]float64{0.30, 0, 0.20, 0.50}},
 	{"scraper", 0.14, func(r *rand.Rand, f []float64) {
 		// Careful scrapers (sophistication near 1) imitate people.
 		s := r.Float64()
@@ -158,7 +166,7 @@ var kinds = []kind{
 		f[13] = beta(r, 0.02, 40)
 		f[14] = 3.4 + 0.7*r.NormFloat64()
 		f[15] = beta(r, 0.1, 15)
-	}},
+	}, [4]float64{0.50, 0, 0.15, 0.35}},
 	{"stuffer", 0.08, func(r *rand.Rand, f []float64) {
 		f[0] = logn(r, 2.3, 0.8)
 		f[1] = beta(r, 0.35, 10)
@@ -176,7 +184,7 @@ var kinds = []kind{
 		f[13] = beta(r, 0.02, 40)
 		f[14] = 1.6 + 0.4*r.NormFloat64()
 		f[15] = beta(r, 0.6, 10)
-	}},
+	}, [4]float64{0.15, 0.05, 0.30, 0.50}},
 	{"monitor", 0.10, func(r *rand.Rand, f []float64) {
 		f[0] = logn(r, 0.2, 0.7)
 		f[1] = beta(r, 0.03, 30)
@@ -194,7 +202,7 @@ var kinds = []kind{
 		f[13] = beta(r, 0.4, 4)
 		f[14] = 1.3 + 0.4*r.NormFloat64()
 		f[15] = beta(r, 0.95, 30)
-	}},
+	}, [4]float64{0.05, 0, 0.60, 0.35}},
 }
 
 // failShare draws the share of failed logins among n attempts.
@@ -240,13 +248,20 @@ func main() {
 }
 
 // write draws n sessions and writes them as CSV with a header row and the
-// class in the last column.
+// class in the last column. The category column agent_family comes second
+// and is drawn from a stream of its own, so that the number columns are the
+// same as before it was added; 3% of its cells and 2% of the resp_kb cells
+// are left empty (the log lacked them: an assumption of this demo).
 func write(w io.Writer, n int, seed uint64) error {
 	r := rand.New(rand.NewPCG(seed, 0x7472696167650a))
+	ra := rand.New(rand.NewPCG(seed, 0x6167656e74730a))
 	bw := bufio.NewWriter(w)
-	for _, f := range features {
+	for j, f := range features {
 		bw.WriteString(f.name)
 		bw.WriteByte(',')
+		if j == 0 {
+			bw.WriteString("agent_family,")
+		}
 	}
 	bw.WriteString("kind\n")
 	f := make([]float64, len(features))
@@ -264,13 +279,29 @@ func write(w io.Writer, n int, seed uint64) error {
 		if r.Float64() < 0.02 {
 			label = kinds[r.IntN(len(kinds))].name
 		}
+		agent := ""
+		if ra.Float64() >= 0.03 {
+			u, a := ra.Float64(), 0
+			for acc := kinds[k].agents[0]; u > acc && a < len(agentFamilies)-1; {
+				a++
+				acc += kinds[k].agents[a]
+			}
+			agent = agentFamilies[a]
+		}
+		noSize := ra.Float64() < 0.02
 		for j, v := range f {
 			if j == 11 || j == 14 {
 				v = math.Max(v, 1)
 			}
-			buf = strconv.AppendFloat(buf[:0], v, 'g', 4, 64)
-			bw.Write(buf)
+			if !(j == 12 && noSize) {
+				buf = strconv.AppendFloat(buf[:0], v, 'g', 4, 64)
+				bw.Write(buf)
+			}
 			bw.WriteByte(',')
+			if j == 0 {
+				bw.WriteString(agent)
+				bw.WriteByte(',')
+			}
 		}
 		bw.WriteString(label)
 		bw.WriteByte('\n')

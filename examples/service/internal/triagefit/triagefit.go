@@ -14,10 +14,10 @@ import (
 	"io"
 
 	"github.com/seine-ml/seine/data"
+	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/score"
 	"github.com/seine-ml/seine/spec"
 	"github.com/seine-ml/seine/train"
-	"gonum.org/v1/gonum/mat"
 )
 
 // Holdout is the share of rows kept out of training and scored.
@@ -38,9 +38,10 @@ func Run(ctx context.Context, specYAML, csv io.Reader) (*Fit, error) {
 		return nil, fmt.Errorf("spec: %w", err)
 	}
 	set, err := data.ReadCSV(csv, data.CSVOptions{
-		Classes:    s.Output.Classes,
-		Features:   s.Features,
-		Multilabel: s.Output.Multilabel,
+		Classes:       s.Output.Classes,
+		Columns:       encode.ColumnsFor(s),
+		MissingTokens: s.MissingTokens,
+		Multilabel:    s.Output.Multilabel,
 	})
 	if err != nil {
 		return nil, fmt.Errorf("data: %w", err)
@@ -53,9 +54,11 @@ func Run(ctx context.Context, specYAML, csv io.Reader) (*Fit, error) {
 	if err != nil {
 		return nil, err
 	}
-	var p mat.Dense
-	res.Model.ProbabilitiesBatch(&p, ho.X)
-	rep, err := score.Evaluate(&p, ho.Y, ho.Classes, score.Options{Multilabel: s.Output.Multilabel})
+	p, err := res.Model.ProbabilitiesSet(ho)
+	if err != nil {
+		return nil, err
+	}
+	rep, err := score.Evaluate(p, ho.Y, ho.Classes, score.Options{Multilabel: s.Output.Multilabel})
 	if err != nil {
 		return nil, err
 	}

@@ -1,0 +1,205 @@
+package chart
+
+import (
+	"bytes"
+	"encoding/xml"
+	"errors"
+	"image/png"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// rocSample is a made-up but plausible ROC curve, a binormal model
+// TPR = Φ(a + Φ⁻¹(FPR)) with a = 1.5 (common practice for smooth ROC
+// curves), at 41 points.
+func rocSample(a float64) (fpr, tpr []float64) {
+	for i := range 41 {
+		x := float64(i) / 40
+		fpr = append(fpr, x)
+		switch i {
+		case 0:
+			tpr = append(tpr, 0)
+		case 40:
+			tpr = append(tpr, 1)
+		default:
+			z := math.Sqrt2 * math.Erfinv(2*x-1)
+			tpr = append(tpr, 0.5*math.Erfc(-(a+z)/math.Sqrt2))
+		}
+	}
+	return fpr, tpr
+}
+
+func decisionCharts() []chartCase {
+	f1, t1 := rocSample(1.5)
+	f2, t2 := rocSample(0.6)
+	// A precision–recall staircase of 12 positives among 400 rows.
+	rec := []float64{1.0 / 12, 2.0 / 12, 3.0 / 12, 4.0 / 12, 4.0 / 12, 5.0 / 12, 6.0 / 12, 7.0 / 12, 8.0 / 12, 9.0 / 12, 10.0 / 12, 11.0 / 12, 1}
+	prec := []float64{1, 1, 1, 0.8, 4.0 / 6, 5.0 / 8, 6.0 / 11, 7.0 / 15, 8.0 / 22, 9.0 / 40, 10.0 / 90, 11.0 / 200, 12.0 / 400}
+	return []chartCase{
+		{"roc", false, ROCPlot{
+			Title:  "ROC curves, holdout (one class against the rest)",
+			Curves: []Series{{Name: "fraud (AUC 0.86)", X: f1, Y: t1}, {Name: "chargeback (AUC 0.66)", X: f2, Y: t2}},
+			Marks:  []Mark{{Curve: 0, X: f1[8], Y: t1[8], Label: "t = 0.42"}},
+		}.Write},
+		{"pr", false, PRPlot{
+			Title:    "Precision–recall, holdout",
+			Curves:   []Series{{Name: "fraud (AP 0.62)", X: rec, Y: prec}},
+			Baseline: []float64{12.0 / 400},
+			Marks:    []Mark{{Curve: 0, X: rec[6], Y: prec[6], Label: "t = 0.42"}},
+		}.Write},
+		{"reliability", false, ReliabilityPlot{
+			Title:      "Reliability, holdout (ECE 0.071)",
+			Count:      []int{3, 0, 4, 9, 12, 20, 31, 45, 88, 160},
+			Accuracy:   []float64{0, math.NaN(), 0.25, 0.33, 0.42, 0.45, 0.55, 0.6, 0.74, 0.93},
+			Confidence: []float64{0.07, math.NaN(), 0.26, 0.36, 0.45, 0.55, 0.65, 0.76, 0.86, 0.97},
+		}.Write},
+	}
+}
+
+// TestDecisionChartsPNG decodes each chart's PNG and checks its size
+// (945 × 591 px; worked in TestChartsPNG from 16 cm × 10 cm at 150 dpi).
+func TestDecisionChartsPNG(t *testing.T) {
+	out := os.Getenv("CHART_OUT") // set to a directory to keep the images for a look
+	for _, c := range decisionCharts() {
+		t.Run(c.name, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := c.write(&buf, PNG); err != nil {
+				t.Fatal(err)
+			}
+			if out != "" {
+				if err := os.WriteFile(filepath.Join(out, c.name+".png"), buf.Bytes(), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			}
+			img, err := png.Decode(&buf)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if b := img.Bounds(); b.Dx() != 945 || b.Dy() != 591 {
+				t.Errorf("size %d×%d px, want 945×591", b.Dx(), b.Dy())
+			}
+		})
+	}
+}
+
+// TestDecisionChartsSVG checks each chart's SVG against the XML 1.0
+// grammar (as encoding/xml reads it) with <svg> as the document element,
+// so that it can be inlined in HTML, and that the texts a reader needs
+// (the operating point's label, every bin count) are in it as text.
+func TestDecisionChartsSVG(t *testing.T) {
+	want := map[string][]string{
+		"roc":         {"t = 0.42", "operating point", "chance"},
+		"pr":          {"t = 0.42", "fraud (AP 0.62)", "share of positives"},
+		"reliability": {">3<", ">0<", ">4<", ">9<", ">12<", ">20<", ">31<", ">45<", ">88<", ">160<", "perfect calibration"},
+	}
+	for _, c := range decisionCharts() {
+		t.Run(c.name, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := c.write(&buf, SVG); err != nil {
+				t.Fatal(err)
+			}
+			s := buf.String()
+			d := xml.NewDecoder(strings.NewReader(s))
+			root := ""
+			for {
+				tok, err := d.Token()
+				if err == io.EOF {
+					break
+				}
+				if err != nil {
+					t.Fatalf("not well-formed XML: %v", err)
+				}
+				if se, ok := tok.(xml.StartElement); ok && root == "" {
+					root = se.Name.Local
+				}
+			}
+			if root != "svg" {
+				t.Errorf("root element %q, want svg", root)
+			}
+			for _, w := range want[c.name] {
+				if !strings.Contains(s, w) {
+					t.Errorf("SVG lacks the text %q", w)
+				}
+			}
+		})
+	}
+}
+
+func TestDecisionChartsBadInput(t *testing.T) {
+	one := []Series{{"a", []float64{0, 1}, []float64{0, 1}}}
+	rel := func(c []int, a, p []float64) func(io.Writer, Format) error {
+		return ReliabilityPlot{Count: c, Accuracy: a, Confidence: p}.Write
+	}
+	tests := []struct {
+		name  string
+		write func(w io.Writer, f Format) error
+		want  error
+	}{
+		{"roc no curves", ROCPlot{}.Write, ErrEmpty},
+		{"roc empty curve", ROCPlot{Curves: []Series{{Name: "a"}}}.Write, ErrEmpty},
+		{"roc mismatched", ROCPlot{Curves: []Series{{"a", []float64{0, 1}, []float64{0}}}}.Write, ErrLength},
+		{"roc rate above 1", ROCPlot{Curves: []Series{{"a", []float64{0, 1.5}, []float64{0, 1}}}}.Write, ErrValue},
+		{"roc all NaN", ROCPlot{Curves: []Series{{"a", []float64{math.NaN()}, []float64{0}}}}.Write, ErrEmpty},
+		{"roc mark on no curve", ROCPlot{Curves: one, Marks: []Mark{{Curve: 1, X: 0.5, Y: 0.5}}}.Write, ErrValue},
+		{"roc mark outside", ROCPlot{Curves: one, Marks: []Mark{{X: -0.1, Y: 0.5}}}.Write, ErrValue},
+		{"pr baselines", PRPlot{Curves: one, Baseline: []float64{0.1, 0.2}}.Write, ErrLength},
+		{"pr baseline above 1", PRPlot{Curves: one, Baseline: []float64{2}}.Write, ErrValue},
+		{"reliability no bins", rel(nil, nil, nil), ErrEmpty},
+		{"reliability lengths", rel([]int{1, 2}, []float64{0.5}, []float64{0.5, 0.5}), ErrLength},
+		{"reliability negative count", rel([]int{-1}, []float64{0.5}, []float64{0.5}), ErrValue},
+		{"reliability NaN in a full bin", rel([]int{1}, []float64{math.NaN()}, []float64{0.5}), ErrValue},
+		{"reliability all empty", rel([]int{0, 0}, []float64{math.NaN(), math.NaN()}, []float64{math.NaN(), math.NaN()}), ErrEmpty},
+		{"unknown format", ROCPlot{Curves: one}.Write, ErrFormat},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			f := PNG
+			if tt.want == ErrFormat {
+				f = Format(9)
+			}
+			var buf bytes.Buffer
+			err := tt.write(&buf, f)
+			if !errors.Is(err, tt.want) {
+				t.Fatalf("err = %v, want %v", err, tt.want)
+			}
+			if buf.Len() != 0 {
+				t.Errorf("wrote %d bytes on error", buf.Len())
+			}
+		})
+	}
+}
+
+// TestDecisionChartsEdge draws degenerate but valid input; each must give
+// a decodable PNG.
+func TestDecisionChartsEdge(t *testing.T) {
+	cases := map[string]func(io.Writer, Format) error{
+		"roc one point":     ROCPlot{Curves: []Series{{"a", []float64{0}, []float64{0}}}}.Write,
+		"roc NaN rates":     ROCPlot{Curves: []Series{{"a", []float64{0, math.NaN(), 1}, []float64{0, 0.5, 1}}}}.Write,
+		"pr one point":      PRPlot{Curves: []Series{{"a", []float64{1}, []float64{0.03}}}, Marks: []Mark{{X: 1, Y: 0.03}}}.Write,
+		"reliability 1 bin": ReliabilityPlot{Count: []int{5}, Accuracy: []float64{1}, Confidence: []float64{1}}.Write,
+	}
+	cases["reliability 40 bin"] = func(w io.Writer, f Format) error {
+		r := ReliabilityPlot{Count: make([]int, 40), Accuracy: make([]float64, 40), Confidence: make([]float64, 40)}
+		for b := range 40 {
+			r.Count[b] = 1000 + b
+			r.Accuracy[b] = float64(b) / 40
+			r.Confidence[b] = (float64(b) + 0.5) / 40
+		}
+		return r.Write(w, f)
+	}
+	for name, write := range cases {
+		t.Run(name, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := write(&buf, PNG); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := png.Decode(&buf); err != nil {
+				t.Fatal(err)
+			}
+		})
+	}
+}
