@@ -32,12 +32,16 @@
 //
 //	probabilities  float64 [N, K]  one column per class, in the order of
 //	                               the metadata's classes
-//	label          int64 [N]       the index of the most probable class
-//	                               (the first on a tie)
+//	label          int64 [N]       the index of the class decided: the most
+//	                               probable (the first on a tie), or, for a
+//	                               binary sigmoid model with an operating
+//	                               threshold t, 1 where p ≥ t
+//	labels         int64 [N, K]    multi-label models only: 1 where the
+//	                               class is present, its probability being
+//	                               at least its operating threshold (0.5
+//	                               when the model has none), else 0
 //
-// For a multi-label model each probability is that of its own class and
-// label is still the arg-max; a caller picks the classes above its
-// threshold from probabilities.
+// These are the decisions of nn.Model.Predict and Labels (see nn.Decision).
 //
 // # Graph
 //
@@ -70,7 +74,9 @@
 //
 // The output is Softmax of z_L, or the sigmoid above per unit; a binary
 // sigmoid model has one unit giving p, the probability of the second
-// class, and probabilities = [1 − p, p].
+// class, and probabilities = [1 − p, p]. A model with a temperature T
+// (nn.Decision) computes g(z_L/T) as nn does, with the output layer's
+// weights and bias divided by T once, when the graph is written.
 //
 // Everything is computed in float64 and nothing is cast to float32. The
 // WebAssembly build of the ONNX runtime has no float64 kernel for Softplus,
@@ -88,7 +94,8 @@
 // The model's metadata_props hold classes (the class names, a JSON list),
 // spec_name, seine_version (nn.Version of the exporting library),
 // model_sha256 (the content digest written in the model file, naming the
-// exact model exported), number_inputs and category_inputs. producer_name
+// exact model exported), number_inputs and category_inputs, and, when the
+// model has them, temperature and thresholds (a JSON list). producer_name
 // is "seine".
 //
 // # Differences from seine's own prediction
@@ -105,7 +112,7 @@
 //   - category text is compared exactly: seine trims surrounding spaces
 //     from a cell first, so the caller must pass trimmed text.
 //
-// A category input named probabilities or label, or numbers in a model
-// with number inputs, cannot be exported (its tensor would have the name
+// A category input named probabilities or label, labels in a multi-label
+// model, or numbers in a model with number inputs, cannot be exported (its tensor would have the name
 // of one of the graph's own); rename it.
 package onnx

@@ -31,15 +31,18 @@ const (
 
 // Names of the graph's fixed inputs and outputs and of the metadata keys.
 const (
-	NumbersInput       = "numbers"       // float64 [N, number inputs]
-	ProbabilitiesOut   = "probabilities" // float64 [N, classes]
-	LabelOut           = "label"         // int64 [N]
-	MetaClasses        = "classes"       // JSON list of the class names, in output order
-	MetaSpecName       = "spec_name"     // the spec's name; "" when it has none
-	MetaSeineVersion   = "seine_version" // nn.Version of the exporting library
-	MetaModelSHA256    = "model_sha256"  // the model file's content digest
-	MetaNumberInputs   = "number_inputs" // JSON list of the columns of NumbersInput, in order
-	MetaCategoryInputs = "category_inputs"
+	NumbersInput       = "numbers"         // float64 [N, number inputs]
+	ProbabilitiesOut   = "probabilities"   // float64 [N, classes]
+	LabelOut           = "label"           // int64 [N]
+	LabelsOut          = "labels"          // int64 [N, classes], multi-label models only
+	MetaClasses        = "classes"         // JSON list of the class names, in output order
+	MetaSpecName       = "spec_name"       // the spec's name; "" when it has none
+	MetaSeineVersion   = "seine_version"   // nn.Version of the exporting library
+	MetaModelSHA256    = "model_sha256"    // the model file's content digest
+	MetaNumberInputs   = "number_inputs"   // JSON list of the columns of NumbersInput, in order
+	MetaCategoryInputs = "category_inputs" // JSON list of the category inputs' names, in order
+	MetaTemperature    = "temperature"     // the model's temperature, when it has one
+	MetaThresholds     = "thresholds"      // JSON list of the model's operating thresholds, when it has them
 )
 
 // Options set an export. The zero value writes DefaultOpset.
@@ -118,8 +121,10 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 			return nil, unsupported("input %q: input type %v", in.Name, in.Type)
 		}
 	}
-	for _, n := range []string{ProbabilitiesOut, LabelOut} {
-		b.reserve(n)
+	b.reserve(ProbabilitiesOut)
+	b.reserve(LabelOut)
+	if s.Output.Multilabel {
+		b.reserve(LabelsOut)
 	}
 	if len(numbers) > 0 {
 		b.reserve(NumbersInput)
@@ -148,6 +153,18 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 		{Key: proto.String(MetaSeineVersion), Value: proto.String(nn.Version)},
 		{Key: proto.String(MetaNumberInputs), Value: proto.String(jsonList(numbers))},
 		{Key: proto.String(MetaCategoryInputs), Value: proto.String(jsonList(categories))},
+	}
+	if d := m.Decision; !d.IsZero() {
+		if t := d.Temperature; t != 0 && t != 1 {
+			meta = append(meta, &pb.StringStringEntryProto{Key: proto.String(MetaTemperature), Value: proto.String(strconv.FormatFloat(t, 'g', -1, 64))})
+		}
+		if d.Thresholds != nil {
+			th, err := json.Marshal(d.Thresholds)
+			if err != nil {
+				return nil, fmt.Errorf("onnx: thresholds: %w", err)
+			}
+			meta = append(meta, &pb.StringStringEntryProto{Key: proto.String(MetaThresholds), Value: proto.String(string(th))})
+		}
 	}
 	if full {
 		sum, err := modelDigest(m)
@@ -316,17 +333,32 @@ func categoryGraph(b *graph, in encode.Input, tokens []string) (string, error) {
 	return b.node("MatMul", in.Name+"_units", []string{counts, b.doubles(in.Name+"_map", []int64{int64(P), int64(U)}, m)}), nil
 }
 
-// netGraph adds the layers, the output activation and the graph outputs.
+// netGraph adds the layers, the output activation, the decision and the
+// graph outputs.
 func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 	sizes := net.Sizes()
 	L := net.NumLayers()
+	T := m.Decision.Temperature
 	a := units
 	for l := 0; l < L; l++ {
 		w, bo := net.Block(l)
 		nin, nout := sizes[l], sizes[l+1]
 		layer := strconv.Itoa(l + 1)
-		W := b.doubles("W"+layer, []int64{int64(nout), int64(nin)}, m.Params[w:w+nout*nin])
-		bias := b.doubles("b"+layer, []int64{int64(nout)}, m.Params[bo:bo+nout])
+		wv, bv := m.Params[w:w+nout*nin], m.Params[bo:bo+nout]
+		if l == L-1 && T != 0 && T != 1 {
+			// Temperature scaling folded into the output layer as nn
+			// does it: g((W a + b)/T) computed as g((W/T) a + b/T), each
+			// weight divided once.
+			wv, bv = slices.Clone(wv), slices.Clone(bv)
+			for i := range wv {
+				wv[i] /= T
+			}
+			for i := range bv {
+				bv[i] /= T
+			}
+		}
+		W := b.doubles("W"+layer, []int64{int64(nout), int64(nin)}, wv)
+		bias := b.doubles("b"+layer, []int64{int64(nout)}, bv)
 		z := b.node("Gemm", "z"+layer, []string{a, W, bias}, attrInt("transB", 1))
 		if l == L-1 {
 			a = z
@@ -337,28 +369,48 @@ func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 			return unsupported("hidden layer %d: %v", l+1, err)
 		}
 	}
-	// Extension point: a model with a temperature T divides the output
-	// pre-activations here (z_L / T) before the output activation, and a
-	// model with operating thresholds computes its label from them instead
-	// of the arg-max below. nn.Model has neither yet.
 	out := m.Spec.Output
 	K := len(m.Classes)
+	th := m.Decision.Thresholds
+	binary := out.Activation == spec.Sigmoid && out.Units() == 1 && K == 2
 	switch {
 	case out.Activation == spec.Softmax:
 		b.nodeTo("Softmax", ProbabilitiesOut, []string{a}, attrInt("axis", 1))
-	case out.Activation == spec.Sigmoid && out.Units() == 1 && K == 2:
+	case binary:
 		// One unit: p is the probability of Classes[1]; [1 − p, p] as nn.
 		p := sigmoid(b, a, "p")
 		q := b.node("Sub", "q", []string{b.scalar("one", 1), p})
 		b.nodeTo("Concat", ProbabilitiesOut, []string{q, p}, attrInt("axis", 1))
+		if len(th) == 1 {
+			// The operating threshold t: class 1 where p ≥ t.
+			yes := b.node("GreaterOrEqual", "decided", []string{p, b.scalar("threshold", th[0])})
+			yes = b.node("Cast", "decided", []string{yes}, attrInt("to", int64(tInt64)))
+			b.nodeTo("Reshape", LabelOut, []string{yes, b.int64s("shape", []int64{-1})})
+		}
 	case out.Activation == spec.Sigmoid:
 		b.nodeTo("Identity", ProbabilitiesOut, []string{sigmoid(b, a, "p")})
 	default:
 		return unsupported("output activation %v", out.Activation)
 	}
-	b.nodeTo("ArgMax", LabelOut, []string{ProbabilitiesOut}, attrInt("axis", 1), attrInt("keepdims", 0), attrInt("select_last_index", 0))
+	if !binary || len(th) != 1 {
+		b.nodeTo("ArgMax", LabelOut, []string{ProbabilitiesOut}, attrInt("axis", 1), attrInt("keepdims", 0), attrInt("select_last_index", 0))
+	}
 	b.output(ProbabilitiesOut, tDouble, "class probabilities, columns in the order of metadata classes", rowDim(), fixedDim(K))
-	b.output(LabelOut, tInt64, "index in metadata classes of the most probable class (the first on a tie)", rowDim())
+	b.output(LabelOut, tInt64, "index in metadata classes of the class decided: the most probable (the first on a tie), or for a binary model with an operating threshold t, 1 where the probability of class 1 is at least t", rowDim())
+	if out.Multilabel {
+		// The classes present: p_k ≥ t_k, with the model's operating
+		// thresholds, else 0.5 (as seine predict decides).
+		t := th
+		if t == nil {
+			t = make([]float64, K)
+			for k := range t {
+				t[k] = 0.5
+			}
+		}
+		present := b.node("GreaterOrEqual", "present", []string{ProbabilitiesOut, b.doubles("thresholds", []int64{int64(K)}, t)})
+		b.nodeTo("Cast", LabelsOut, []string{present}, attrInt("to", int64(tInt64)))
+		b.output(LabelsOut, tInt64, "multi-label only: 1 where a class is present (its probability at least its threshold), else 0", rowDim(), fixedDim(K))
+	}
 	return nil
 }
 

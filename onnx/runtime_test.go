@@ -195,6 +195,10 @@ type runtimeOut struct {
 		Dims []int     `json:"dims"`
 		Data []float64 `json:"data"`
 	} `json:"label"`
+	Labels struct {
+		Dims []int     `json:"dims"`
+		Data []float64 `json:"data"`
+	} `json:"labels"`
 	Runtime string `json:"runtime"`
 }
 
@@ -326,6 +330,25 @@ penalty: {l2: 0.2}
 		cs = append(cs, exportCase{name: "tail-" + g.String(), rows: tail.String(), model: tailModel(t, g)})
 	}
 
+	// A decision: temperature and operating thresholds (nn.Decision), set
+	// on freshly trained models and read back from the model file, as a
+	// model written by train with calibration would be.
+	cs = append(cs, exportCase{name: "wdbc-temperature-threshold", rows: wdbc, model: withDecision(t, trainCase(t, `version: 1
+name: wdbc-decided
+inputs: [`+wdbcInputs+`]
+hidden: [{units: 5, activation: relu}]
+output: {classes: [benign, malignant], activation: sigmoid}
+penalty: {l2: 0.5}
+`, wdbc, 25), nn.Decision{Temperature: 1.7, Thresholds: []float64{0.3}})})
+	cs = append(cs, exportCase{name: "iris-multilabel-decided", rows: multi, model: withDecision(t, trainCase(t, `version: 1
+name: iris-tags-decided
+inputs: [sepal_length_cm, sepal_width_cm, petal_length_cm, petal_width_cm]
+hidden: [{units: 4, activation: tanh}]
+output: {classes: [long, wide, big], activation: sigmoid, multilabel: true}
+penalty: {l2: 3}
+`, multi, 10), nn.Decision{Temperature: 2, Thresholds: []float64{0.3, 0.6, 0.45}})})
+	cs = append(cs, exportCase{name: "iris-softmax-temperature", rows: iris, model: withDecision(t, trainCase(t, irisHead+"name: iris-warm\nhidden: [{units: 3, activation: sigmoid}]\n", iris, 30), nn.Decision{Temperature: 2.5})})
+
 	train, rows := irisMixed(t, iris)
 	cs = append(cs, exportCase{name: "iris-mixed-missing", rows: rows, model: trainCase(t, `version: 1
 name: iris-mixed
@@ -342,6 +365,20 @@ output: {classes: [setosa, versicolor, virginica], activation: softmax}
 penalty: {l2: 0.1}
 `, train, 40)})
 	return cs
+}
+
+// withDecision gives m the decision d through its model file, the way a
+// calibrated model reaches a user.
+func withDecision(t *testing.T, m *nn.Model, d nn.Decision) *nn.Model {
+	t.Helper()
+	m.Decision = d
+	var buf bytes.Buffer
+	_, err := m.WriteTo(&buf)
+	require.NoError(t, err)
+	out, err := nn.ReadModel(&buf)
+	require.NoError(t, err)
+	require.Equal(t, d.Temperature, out.Decision.Temperature)
+	return out
 }
 
 // irisTags derives a multi-label set from iris: tag long when the petal is
@@ -481,11 +518,43 @@ func TestRuntimeAgrees(t *testing.T) {
 					worst = max(worst, rel)
 					require.LessOrEqual(t, rel, 1e-12, "row %d class %s: runtime %v, seine %v", r+1, c.model.Classes[j], *g, w)
 				}
-				require.Equal(t, float64(argmax(want[i][r])), got.Label.Data[r], "row %d label", r+1)
+				require.Equal(t, float64(decided(c.model, want[i][r])), got.Label.Data[r], "row %d label", r+1)
+				if c.model.Multilabel() {
+					require.Equal(t, []int{rows, k}, got.Labels.Dims)
+					for j := 0; j < k; j++ {
+						present := 0.0
+						if want[i][r][j] >= threshold(c.model, j) {
+							present = 1
+						}
+						require.Equal(t, present, got.Labels.Data[r*k+j], "row %d class %s present", r+1, c.model.Classes[j])
+					}
+				}
 			}
 			t.Logf("%d rows × %d classes, largest relative difference %.2g (onnxruntime-web %s)", rows, k, worst, got.Runtime)
 		})
 	}
+}
+
+// decided is the class nn.Model.Predict decides from the probabilities p
+// (see nn.Decision): class 1 when p₁ ≥ t for a binary sigmoid model with
+// an operating threshold t, else the most probable class.
+func decided(m *nn.Model, p []float64) int {
+	if th := m.Decision.Thresholds; len(th) == 1 && len(p) == 2 && !m.Multilabel() {
+		if p[1] >= th[0] {
+			return 1
+		}
+		return 0
+	}
+	return argmax(p)
+}
+
+// threshold is class k's operating threshold of a multi-label model: the
+// model's, else 0.5 (nn.Model.Labels).
+func threshold(m *nn.Model, k int) float64 {
+	if m.Decision.Thresholds != nil {
+		return m.Decision.Thresholds[k]
+	}
+	return 0.5
 }
 
 func argmax(p []float64) int {
@@ -510,4 +579,34 @@ func TestCheckerAccepts(t *testing.T) {
 	out, err := exec.Command(py, args...).CombinedOutput()
 	require.NoError(t, err, "check.py: %s", out)
 	t.Logf("%s", out)
+}
+
+// TestDecidedMatchesNN checks the test's own reading of nn.Decision
+// (decided, threshold) against nn.Model.Predict and Labels, on the cases
+// whose coded rows are the raw number rows.
+func TestDecidedMatchesNN(t *testing.T) {
+	for _, c := range exportCases(t) {
+		if c.model.Encoder().HasCategories() || c.model.Decision.IsZero() {
+			continue
+		}
+		set, err := data.ReadCSV(strings.NewReader(c.rows), data.CSVOptions{
+			Columns: c.model.Encoder().Columns(), Classes: c.model.Classes, Multilabel: c.model.Multilabel(),
+		})
+		require.NoError(t, err)
+		p := goProbabilities(t, c.model, c.rows)
+		for r := range p {
+			x := set.X.RawRowView(r)
+			require.Equal(t, c.model.Predict(x), decided(c.model, p[r]), "%s row %d", c.name, r+1)
+			if !c.model.Multilabel() {
+				continue
+			}
+			var want []int
+			for k := range p[r] {
+				if p[r][k] >= threshold(c.model, k) {
+					want = append(want, k)
+				}
+			}
+			require.Equal(t, want, c.model.Labels(nil, x, 0), "%s row %d", c.name, r+1)
+		}
+	}
 }

@@ -16,9 +16,11 @@ layer and the output activation, all in float64. Inputs: "numbers", a
 float64 tensor [N, number inputs] in the model's input order, with NaN for
 a missing value, and one string tensor [N, 1] per category input, named
 after it, holding the cell text without surrounding spaces. Outputs:
-"probabilities" [N, classes] float64 and "label" [N] int64, the index of
-the most probable class. The metadata holds the class names (classes, a
-JSON list), the spec name, the seine version and the model's sha256.
+"probabilities" [N, classes] float64, "label" [N] int64, the index of the
+class predict decides (the model's temperature and operating threshold
+included), and for a multi-label model "labels" [N, classes] int64, 1 for
+each class present. The metadata holds the class names (classes, a JSON
+list), the spec name, the seine version and the model's sha256.
 
 The graph cannot refuse a row: a level never seen in training gives zeros
 for that input even under unknown: refuse, where predict refuses the row.

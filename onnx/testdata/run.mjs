@@ -9,7 +9,8 @@
 // {"type": "float64" | "string", "dims": [...], "data": [...]}}}]}, where a
 // null in float64 data stands for NaN (JSON has no NaN). Each case's out
 // file receives {"probabilities": {"dims", "data"}, "label": {"dims",
-// "data"}, "runtime": VERSION}, NaN again written as null. Numbers are
+// "data"}, "labels" (multi-label models only), "runtime": VERSION}, NaN
+// again written as null. Numbers are
 // written by JSON.stringify, the shortest text that reads back to the same
 // float64.
 import { createRequire } from 'node:module';
@@ -47,6 +48,8 @@ for (const c of job.cases) {
   const feeds = {};
   for (const [name, spec] of Object.entries(c.inputs)) feeds[name] = tensor(spec);
   const r = await session.run(feeds);
-  writeFileSync(c.out, JSON.stringify({ probabilities: plain(r.probabilities), label: plain(r.label), runtime: version }));
+  const out = { probabilities: plain(r.probabilities), label: plain(r.label), runtime: version };
+  if (r.labels) out.labels = plain(r.labels); // multi-label models only
+  writeFileSync(c.out, JSON.stringify(out));
   await session.release();
 }
