@@ -104,3 +104,14 @@ func (m *Model) threshold(k int) float64 {
 	}
 	return 0.5
 }
+
+// SetDecision checks d against the model and makes every prediction use
+// it. Call it before the model is shared between goroutines.
+func (m *Model) SetDecision(d Decision) error {
+	if err := d.check(m.Spec); err != nil {
+		return err
+	}
+	m.Decision = d
+	m.fwd = m.tempered()
+	return nil
+}

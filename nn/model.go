@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sync"
 
 	"gonum.org/v1/gonum/mat"
@@ -63,6 +64,28 @@ type Summary struct {
 	HoldoutAccuracy float64 `json:"holdout_accuracy"` //
 	Seed            uint64  `json:"seed"`             // initialisation seed
 	Library         string  `json:"library"`          // seine version that trained it
+	// ClassWeights are the per-class factors the cross-entropy was
+	// weighted by (spec train.class_weights), in class order; nil when
+	// unweighted.
+	ClassWeights []float64 `json:"class_weights,omitempty"`
+	// Operating holds, for each class with an operating threshold
+	// (Decision), the holdout figures at that threshold.
+	Operating []OperatingPoint `json:"operating,omitempty"`
+	// HoldoutECE and HoldoutECEBefore are the holdout expected calibration
+	// error with and without the model's temperature; NaN when not
+	// measured.
+	HoldoutECE       float64 `json:"holdout_ece"`
+	HoldoutECEBefore float64 `json:"holdout_ece_before"`
+}
+
+// OperatingPoint is a class's operating threshold with the holdout
+// figures there.
+type OperatingPoint struct {
+	Class     string  `json:"class"`
+	Threshold float64 `json:"threshold"`
+	Precision float64 `json:"precision"`
+	Recall    float64 `json:"recall"`
+	F1        float64 `json:"f1"`
 }
 
 // Version is the library version written into model summaries.
@@ -132,17 +155,56 @@ func (m *Model) init() error {
 	if len(m.Classes) != len(m.Spec.Output.Classes) {
 		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.Classes), len(m.Spec.Output.Classes))
 	}
+	for k, c := range m.Classes {
+		if c != m.Spec.Output.Classes[k] {
+			return fmt.Errorf("%w: classes: class %d is %q, the spec's output.classes say %q", ErrModel, k+1, c, m.Spec.Output.Classes[k])
+		}
+	}
+	if m.Label != "" && slices.Contains(m.Features, m.Label) {
+		return fmt.Errorf("%w: label: the label column %q is also an input", ErrModel, m.Label)
+	}
 	if err := m.Decision.check(m.Spec); err != nil {
 		return err
 	}
 	m.net = net
 	m.fwd = m.tempered()
+	if err := m.probe(); err != nil {
+		return err
+	}
 	n := m.enc.NumInputs()
 	m.batchPool.New = func() any {
 		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), coded: make([]float64, n), probs: make([]float64, len(m.Classes))}
 	}
 	m.pool.New = func() any {
 		return &rowScratch{ws: net.NewWorkspace(1), coded: make([]float64, n), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
+	}
+	return nil
+}
+
+// probeUnits are the input-unit values a model must answer finitely at:
+// the training mean of every standardised input and three standard
+// deviations either side (one-hot units take the same values, which
+// covers 0 and 1 in between).
+var probeUnits = []float64{0, 3, -3}
+
+// probe refuses params that overflow on inputs near the training data:
+// with finite params a forward pass can still overflow (identity layers
+// with weights near ±1e308 give NaN probabilities on ordinary rows), and
+// a model that cannot answer for typical rows must not load.
+func (m *Model) probe() error {
+	ws := m.net.NewWorkspace(1)
+	in := make([]float64, m.net.Inputs())
+	out := make([]float64, m.net.Outputs())
+	for _, v := range probeUnits {
+		for i := range in {
+			in[i] = v
+		}
+		m.net.ForwardRow(out, ws, m.fwd, in)
+		for _, p := range out {
+			if !(p >= 0 && p <= 1) {
+				return fmt.Errorf("%w: params: the output is %v for inputs at %+g standard deviations from the training mean: the params overflow on ordinary rows", ErrModel, p, v)
+			}
+		}
 	}
 	return nil
 }

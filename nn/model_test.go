@@ -3,8 +3,10 @@ package nn
 import (
 	"bytes"
 	"encoding/base64"
+	"encoding/binary"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -233,6 +235,15 @@ func TestReadModelRejects(t *testing.T) {
 		}), ErrModel, "disagrees"},
 		{"encoder fill under refuse", edit(func(d map[string]any) { input(d, 0)["fill"] = 3 }), ErrModel, "refuse"},
 		{"encoder unknown rule word", edit(func(d map[string]any) { input(d, 0)["missing"] = "guess" }), ErrModel, "guess"},
+		{"classes disagree with the spec", edit(func(d map[string]any) { d["classes"] = []string{"x", "z", "y"} }), ErrModel, "output.classes"},
+		{"params that overflow", edit(func(d map[string]any) {
+			raw := make([]byte, 8*len(m.Params))
+			for i := range m.Params {
+				binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(1e308)) // tanh saturates, but the softmax layer's z overflows
+			}
+			params(d)["data"] = base64.StdEncoding.EncodeToString(raw)
+		}), ErrModel, "overflow"},
+		{"label is an input", edit(func(d map[string]any) { d["label"] = "b" }), ErrModel, `label column "b"`},
 		{"encoder input missing", edit(func(d map[string]any) {
 			e := d["encoder"].(map[string]any)
 			e["inputs"] = e["inputs"].([]any)[:2]
@@ -371,4 +382,38 @@ func TestReadModelVersion1(t *testing.T) {
 	for k := range a {
 		assert.Equal(t, math.Float64bits(a[k]), math.Float64bits(b[k]))
 	}
+}
+
+// A writer never produces what its own reader refuses (issue 13): a model
+// whose stored spec would pass the spec size limit — here a category with
+// 60,000 learned levels, over 1 MiB of YAML though every part is within
+// its own limit — is refused by Save before anything is written, and the
+// old file stays.
+func TestSaveRefusesUnloadable(t *testing.T) {
+	const n = 60_000
+	levels := make([]string, n)
+	for i := range levels {
+		levels[i] = fmt.Sprintf("level-number-%06d", i)
+	}
+	s := &spec.Network{
+		Version: 1, Inputs: 1, Features: []string{"c"},
+		Types:         []spec.Input{{Type: spec.CategoryInput, Levels: levels}},
+		MissingTokens: spec.DefaultMissingTokens,
+		Output:        spec.Output{Classes: []string{"a", "b"}, Activation: spec.Softmax},
+		Init:          spec.Init{Scheme: spec.GlorotUniform, Seed: 1},
+	}
+	enc, err := encode.New([]encode.Input{{Name: "c", Type: spec.CategoryInput, Levels: levels, Fill: math.NaN()}}, nil)
+	require.NoError(t, err)
+	net, err := Compile(s)
+	require.NoError(t, err)
+	m, err := NewModel(s, net.NewParams(), enc, nil)
+	require.NoError(t, err)
+
+	path := filepath.Join(t.TempDir(), "m.seine.json")
+	require.NoError(t, os.WriteFile(path, []byte("the old model"), 0o644))
+	err = m.Save(path)
+	require.ErrorIs(t, err, spec.ErrTooLarge)
+	assert.Contains(t, err.Error(), "would not load")
+	b, _ := os.ReadFile(path)
+	assert.Equal(t, "the old model", string(b))
 }

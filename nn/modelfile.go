@@ -14,11 +14,11 @@ import (
 	"io/fs"
 	"math"
 	"os"
-	"path/filepath"
 	"reflect"
 	"strings"
 
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/atomicfile"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -309,19 +309,23 @@ func parseMissing(w string) (spec.MissingRule, bool) {
 
 // fileSummary is Summary with NaN written as null.
 type fileSummary struct {
-	Method          string   `json:"method"`
-	Iterations      int      `json:"iterations"`
-	Evaluations     float64  `json:"evaluations"`
-	Seconds         float64  `json:"seconds"`
-	Status          string   `json:"status"`
-	Cost            *float64 `json:"cost"`
-	TrainRows       int      `json:"train_rows"`
-	TrainAccuracy   *float64 `json:"train_accuracy"`
-	HoldoutRows     int      `json:"holdout_rows"`
-	HoldoutCost     *float64 `json:"holdout_cost"`
-	HoldoutAccuracy *float64 `json:"holdout_accuracy"`
-	Seed            uint64   `json:"seed"`
-	Library         string   `json:"library"`
+	Method           string           `json:"method"`
+	Iterations       int              `json:"iterations"`
+	Evaluations      float64          `json:"evaluations"`
+	Seconds          float64          `json:"seconds"`
+	Status           string           `json:"status"`
+	Cost             *float64         `json:"cost"`
+	TrainRows        int              `json:"train_rows"`
+	TrainAccuracy    *float64         `json:"train_accuracy"`
+	HoldoutRows      int              `json:"holdout_rows"`
+	HoldoutCost      *float64         `json:"holdout_cost"`
+	HoldoutAccuracy  *float64         `json:"holdout_accuracy"`
+	Seed             uint64           `json:"seed"`
+	Library          string           `json:"library"`
+	ClassWeights     []float64        `json:"class_weights,omitempty"`
+	Operating        []OperatingPoint `json:"operating,omitempty"`
+	HoldoutECE       *float64         `json:"holdout_ece,omitempty"`
+	HoldoutECEBefore *float64         `json:"holdout_ece_before,omitempty"`
 }
 
 func nullable(v float64) *float64 {
@@ -370,6 +374,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
 		HoldoutRows: s.HoldoutRows, HoldoutCost: nullable(s.HoldoutCost), HoldoutAccuracy: nullable(s.HoldoutAccuracy),
 		Seed: s.Seed, Library: s.Library,
+		ClassWeights: s.ClassWeights, Operating: s.Operating, HoldoutECE: nullable(s.HoldoutECE), HoldoutECEBefore: nullable(s.HoldoutECEBefore),
 	}
 	if !finite(f.Summary.Evaluations) {
 		f.Summary.Evaluations = 0
@@ -484,6 +489,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
 		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),
 		Seed: fs.Seed, Library: fs.Library,
+		ClassWeights: fs.ClassWeights, Operating: fs.Operating, HoldoutECE: fromNullable(fs.HoldoutECE), HoldoutECEBefore: fromNullable(fs.HoldoutECEBefore),
 	}
 	if err := m.init(); err != nil {
 		return nil, err
@@ -647,38 +653,27 @@ func jsonErr(b []byte, err error) string {
 }
 
 // Save writes m to the file at path without ever leaving a half-written or
-// lost model: it writes a temporary file in the same folder, syncs it, and
-// renames it over path. On any failure the old file at path is untouched.
-func (m *Model) Save(path string) (err error) {
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+// lost model (internal/atomicfile): it writes a temporary file in the
+// target's folder, syncs it, and renames it over the target; a path that is
+// a symbolic link is written through to the file it names, and an existing
+// file keeps its permission bits. Before anything is written it reads the
+// bytes back with the loader's own limits, so Save never produces a file
+// that Load refuses (the error wraps the loader's). On any failure the old
+// file at path is untouched.
+func (m *Model) Save(path string) error {
+	var buf bytes.Buffer
+	if _, err := m.WriteTo(&buf); err != nil {
+		return fmt.Errorf("nn: saving model %s: %w", path, err)
+	}
+	if _, err := ReadModel(bytes.NewReader(buf.Bytes())); err != nil {
+		return fmt.Errorf("nn: saving model %s: the file would not load, so nothing was written: %w", path, err)
+	}
+	err := atomicfile.Write(path, func(w io.Writer) error {
+		_, err := w.Write(buf.Bytes())
+		return err
+	})
 	if err != nil {
-		return fmt.Errorf("nn: saving model: %w", err)
-	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if err = tmp.Chmod(0o644); err != nil {
-		return fmt.Errorf("nn: saving model: %w", err)
-	}
-	if _, err = m.WriteTo(tmp); err != nil {
 		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	if d, derr := os.Open(dir); derr == nil {
-		d.Sync() // make the rename durable; not all systems support it
-		d.Close()
 	}
 	return nil
 }

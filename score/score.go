@@ -49,6 +49,9 @@ type Report struct {
 	// above, for plots; they are not written as JSON.
 	Ranking     *Rankings    `json:"-"`
 	Reliability *Reliability `json:"-"`
+	// Warnings say where these figures mislead (see Warnings); the caller
+	// fills them in.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 // Options set how predictions are turned into decisions.
@@ -184,8 +187,11 @@ func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 	if opt.Multilabel {
 		h := float64(wrong) / float64(m*k)
 		r.HammingLoss = &h
-		if opt.Thresholds == nil {
-			r.Threshold = th
+		r.Threshold = thr[0]
+		for _, t := range thr {
+			if t != thr[0] {
+				r.Threshold = 0 // differs by class: see PerClass
+			}
 		}
 		for j := range r.PerClass {
 			r.PerClass[j].Threshold = nullable(thr[j])

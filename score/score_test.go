@@ -2,6 +2,7 @@ package score
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -102,4 +103,38 @@ func TestCrossEntropyFinite(t *testing.T) {
 	require.NoError(t, err)
 	assert.False(t, math.IsInf(r.CrossEntropy, 0))
 	assert.InDelta(t, -math.Log(floor), r.CrossEntropy, 1e-9)
+}
+
+// Each warning of Warnings, on reports built by hand: 100 rows, 97 of
+// class "ok" and 3 of "fraud".
+func TestWarnings(t *testing.T) {
+	mk := func(acc float64, classes ...Class) *Report {
+		r := &Report{Rows: 100, Accuracy: acc, PerClass: classes}
+		return r
+	}
+	quiet := mk(0.99, Class{Name: "ok", Rows: 90, Precision: 0.99, Recall: 0.99}, Class{Name: "fraud", Rows: 10, Precision: 0.9, Recall: 0.8})
+	if w := Warnings(quiet, "holdout"); len(w) != 0 {
+		t.Errorf("no warning expected: %q", w)
+	}
+	for _, tc := range []struct {
+		name string
+		r    *Report
+		want string
+	}{
+		{"below the majority share", mk(0.95, Class{Name: "ok", Rows: 97, Precision: 0.97, Recall: 0.98}, Class{Name: "fraud", Rows: 3}), "below the share of the largest class \"ok\" (0.9700)"},
+		{"few rows", mk(0.99, Class{Name: "ok", Rows: 97, Precision: 1, Recall: 1}, Class{Name: "fraud", Rows: 3, Precision: 1, Recall: 0.67}), "only 3 holdout rows"},
+		{"no rows", mk(1, Class{Name: "ok", Rows: 100, Precision: 1, Recall: 1}, Class{Name: "fraud"}), "no holdout rows"},
+		{"recall far below precision", mk(0.98, Class{Name: "ok", Rows: 92, Precision: 0.98, Recall: 1}, Class{Name: "fraud", Rows: 8, Precision: 1, Recall: 0.25}), "recall 0.2500 is far below precision 1.0000"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			w := Warnings(tc.r, "holdout")
+			found := false
+			for _, s := range w {
+				found = found || strings.Contains(s, tc.want)
+			}
+			if !found {
+				t.Errorf("warnings %q lack %q", w, tc.want)
+			}
+		})
+	}
 }

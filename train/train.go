@@ -59,6 +59,14 @@ type Config struct {
 	// Progress, when non-nil, is called after every iteration; returning
 	// true stops the run.
 	Progress func(Progress) (stop bool)
+	// Calibrate fits a temperature on the holdout rows (temperature
+	// scaling, Guo et al. 2017) and stores it in the model. It needs
+	// Holdout.
+	Calibrate bool
+	// Thresholds, when non-nil, chooses operating thresholds on the
+	// holdout rows by its rule and stores them in the model (sigmoid
+	// outputs only). It needs Holdout.
+	Thresholds *ThresholdRule
 }
 
 // Progress is the record of one iteration, with the holdout figures (NaN
@@ -160,8 +168,11 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 		if err := CheckSet(s, cfg.Holdout, "holdout"); err != nil {
 			return nil, fmt.Errorf("%w: %w", ErrConfig, err)
 		}
-	} else if cfg.KeepBest || cfg.Patience > 0 {
-		return nil, fmt.Errorf("%w: keeping the best params or patience needs a holdout", ErrConfig)
+	} else if cfg.KeepBest || cfg.Patience > 0 || cfg.Calibrate || cfg.Thresholds != nil {
+		return nil, fmt.Errorf("%w: keeping the best params, patience, calibration and thresholds need holdout rows", ErrConfig)
+	}
+	if cfg.Thresholds != nil && s.Output.Activation != spec.Sigmoid {
+		return nil, fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrConfig)
 	}
 	if cfg.Patience < 0 || cfg.Batch < 0 || cfg.Workers < 0 {
 		return nil, fmt.Errorf("%w: patience, batch and workers must not be negative", ErrConfig)
@@ -277,10 +288,15 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	}
 	model.Summary.TrainAccuracy = ts.accuracy(params)
 	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
+	noDecision(model)
 	if hold != nil {
 		model.Summary.HoldoutRows = cfg.Holdout.Rows()
 		model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = hold.Measure(params)
+		if err := decide(model, params, hx, cfg.Holdout, cfg); err != nil {
+			return nil, err
+		}
 	}
+	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, hx, run)...)
 	res.Model = model
 	if runErr != nil {
 		return res, fmt.Errorf("train: %w", runErr)

@@ -161,3 +161,38 @@ train:
 	assert.Equal(t, []string{"p", "q"}, res.Model.Spec.Types[1].Levels, "the model's spec holds the learned levels")
 	assert.Equal(t, 1+2, res.Model.Net().Inputs())
 }
+
+// The warnings of a run on degenerate data: a class with three training
+// rows, more params than rows, and an iteration limit reached far from a
+// minimum.
+func TestFitWarnings(t *testing.T) {
+	s := parseSpec(t, `
+version: 1
+inputs: 2
+hidden:
+  - units: 20
+    activation: tanh
+output:
+  classes: [a, b]
+penalty:
+  l2: 0
+`)
+	x := mat.NewDense(23, 2, nil)
+	y := mat.NewDense(23, 2, nil)
+	for i := range 23 {
+		c := 0
+		if i < 3 {
+			c = 1
+		}
+		x.Set(i, 0, float64(i%7))
+		x.Set(i, 1, float64(c)+0.1*float64(i%3))
+		y.Set(i, c, 1)
+	}
+	set := &data.Set{X: x, Y: y, Classes: []string{"a", "b"}, Features: []string{"u", "v"}}
+	res, err := Train(context.Background(), s, set, Config{Limits: optim.Limits{Iterations: 2}})
+	require.NoError(t, err)
+	all := strings.Join(res.Warnings, "\n")
+	for _, w := range []string{`class "b" has only 3 training rows`, "the net has 102 params for 23 training rows", "stopped at the iteration limit (2)"} {
+		assert.Contains(t, all, w)
+	}
+}

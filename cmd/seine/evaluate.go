@@ -29,8 +29,32 @@ threshold.
 
 For multi-label models accuracy is the share of rows whose whole set of
 classes is right, each class is scored as its own yes/no question, and
--threshold (default 0.5) is the probability at or above which a class
-counts as present.
+-threshold (default the model's operating thresholds, else 0.5) is the
+probability at or above which a class counts as present. A binary sigmoid
+model with an operating threshold decides the second class when its
+probability is at least the threshold; softmax models take the most
+probable class.
+
+Ranking and calibration: per class (one-vs-rest) the area under the ROC
+curve (ties count one half, as the Mann–Whitney statistic) and the average
+precision (the step sum of precision over recall, not interpolated), their
+macro means over the classes that have both positive and negative rows, and
+the expected calibration error over 10 equal-width bins of the predicted
+probability (Guo et al. 2017). -json adds per_class[].roc_auc,
+per_class[].average_precision, per_class[].threshold, macro_roc_auc,
+macro_average_precision and ece (null where a figure is undefined). -roc,
+-pr and -reliability draw the curves, with the operating point marked.
+
+` + decisionCaution
+
+// decisionCaution is the caution printed with evaluate's help and in the
+// report (issue 11's wording).
+const decisionCaution = `A threshold trades one kind of error for another; the right trade depends
+on the cost of each error in your setting. Where a model's decisions affect
+people (access, accounts, credit, health), check error rates per group,
+keep a person able to review and overturn a decision, and follow the rules
+that apply locally. Calibration measured on one holdout set holds only
+while the data look like that set.
 `
 
 func runEvaluate(ctx context.Context, e *env, args []string) error {
@@ -40,7 +64,10 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
 	asJSON := fs.Bool("json", false, "write the report as one JSON object")
 	plot := fs.String("plot", "", "also draw the confusion matrix to `FILE`.png or FILE.svg")
-	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class counts as present (default 0.5)")
+	rocFile := fs.String("roc", "", "also draw the ROC curves, operating points marked, to `FILE`.png or FILE.svg")
+	prFile := fs.String("pr", "", "also draw the precision–recall curves, operating points marked, to `FILE`.png or FILE.svg")
+	relFile := fs.String("reliability", "", "also draw the reliability diagram to `FILE`.png or FILE.svg")
+	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class counts as present (default the model's operating thresholds, else 0.5)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -63,12 +90,25 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
+	plots := map[string]string{"-roc": *rocFile, "-pr": *prFile, "-reliability": *relFile}
+	for flag, path := range plots {
+		if path == "" {
+			continue
+		}
+		if _, err := chart.FormatOf(path); err != nil {
+			return usagef("%s %s: want a file name ending in .png or .svg", flag, path)
+		}
+		if err := refuseOverwrite(flag, path, "model", *modelPath, "data", *dataPath); err != nil {
+			return err
+		}
+	}
 	m, err := loadModel(*modelPath)
 	if err != nil {
 		return err
 	}
-	if *threshold != 0 && !m.Multilabel() {
-		return usagef("-threshold applies to multi-label models only; %s picks the most probable class", *modelPath)
+	thresholds, err := decisionThresholds(m, *threshold, *modelPath)
+	if err != nil {
+		return err
 	}
 	if *plot != "" && m.Multilabel() {
 		return usagef("-plot: a multi-label model has no confusion matrix (each class is its own yes/no question)")
@@ -77,9 +117,13 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	rep, err := evaluate(m, set, *threshold)
+	rep, err := evaluate(m, set, thresholds)
 	if err != nil {
 		return prefixLines(*dataPath, err)
+	}
+	rep.Warnings = score.Warnings(rep, baseName(*dataPath))
+	for _, w := range rep.Warnings {
+		fmt.Fprintf(e.stderr, "seine evaluate: warning: %s\n", w)
 	}
 	if *plot != "" {
 		title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
@@ -88,6 +132,19 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 		})
 		if err != nil {
 			return fmt.Errorf("-plot %s: %w", *plot, err)
+		}
+	}
+	title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
+	for _, pl := range []struct {
+		flag, path string
+		chart      chartWriter
+	}{{"-roc", *rocFile, rocPlot(rep, title)}, {"-pr", *prFile, prPlot(rep, title)}, {"-reliability", *relFile, reliabilityPlot(rep, title)}} {
+		if pl.path == "" {
+			continue
+		}
+		f, _ := chart.FormatOf(pl.path)
+		if err := writeAtomic(pl.path, func(w io.Writer) error { return pl.chart.Write(w, f) }); err != nil {
+			return fmt.Errorf("%s %s: %w", pl.flag, pl.path, err)
 		}
 	}
 	if *asJSON {
@@ -111,12 +168,12 @@ func dataForModel(m *nn.Model, label string, noLabel bool) data.CSVOptions {
 }
 
 // evaluate scores m on the labelled rows of set.
-func evaluate(m *nn.Model, set *data.Set, threshold float64) (*score.Report, error) {
+func evaluate(m *nn.Model, set *data.Set, thresholds []float64) (*score.Report, error) {
 	p, err := m.ProbabilitiesSet(set)
 	if err != nil {
 		return nil, err
 	}
-	return score.Evaluate(p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Threshold: threshold})
+	return score.Evaluate(p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Thresholds: thresholds})
 }
 
 func displayName(m *nn.Model) string {
@@ -156,15 +213,22 @@ func writeReport(w io.Writer, modelPath, dataPath string, m *nn.Model, r *score.
 		fmt.Fprintf(w, "  accuracy        %6.2f%%  %d of %d rows right\n", 100*r.Accuracy, right, r.Rows)
 	}
 	fmt.Fprintf(w, "  cross-entropy   %7.4f  nats per row\n", r.CrossEntropy)
-	fmt.Fprintf(w, "  macro F1        %7.4f  mean of the class F1 scores\n\n", r.MacroF1)
+	fmt.Fprintf(w, "  macro F1        %7.4f  mean of the class F1 scores\n", r.MacroF1)
+	fmt.Fprintf(w, "  macro ROC area  %7s  mean one-vs-rest area under the ROC curve\n", optText(r.MacroROCAUC))
+	fmt.Fprintf(w, "  macro AP        %7s  mean average precision\n", optText(r.MacroAveragePrecision))
+	fmt.Fprintf(w, "  ECE             %7.4f  expected calibration error, 10 bins\n\n", r.ECE)
 
 	cw := len("class")
 	for _, c := range r.Classes {
 		cw = max(cw, len([]rune(c)))
 	}
-	fmt.Fprintf(w, "  %-*s  %6s  %9s  %9s  %6s  %6s\n", cw, "class", "rows", "predicted", "precision", "recall", "F1")
+	fmt.Fprintf(w, "  %-*s  %6s  %9s  %9s  %6s  %6s  %7s  %6s  %9s\n", cw, "class", "rows", "predicted", "precision", "recall", "F1", "ROC AUC", "AP", "threshold")
 	for _, c := range r.PerClass {
-		fmt.Fprintf(w, "  %s  %6d  %9d  %9.4f  %6.4f  %6.4f\n", pad(c.Name, cw), c.Rows, c.Predicted, c.Precision, c.Recall, c.F1)
+		th := "-"
+		if c.Threshold != nil {
+			th = fmt.Sprintf("%.4g", *c.Threshold)
+		}
+		fmt.Fprintf(w, "  %s  %6d  %9d  %9.4f  %6.4f  %6.4f  %7s  %6s  %9s\n", pad(c.Name, cw), c.Rows, c.Predicted, c.Precision, c.Recall, c.F1, optText(c.ROCAUC), optText(c.AveragePrecision), th)
 	}
 	if r.Confusion == nil {
 		return
@@ -189,6 +253,15 @@ func writeReport(w io.Writer, modelPath, dataPath string, m *nn.Model, r *score.
 		}
 		fmt.Fprintln(w)
 	}
+}
+
+// optText writes a figure that may be undefined (nil: a class without
+// positive or negative rows) with four decimals, or "-".
+func optText(v *float64) string {
+	if v == nil {
+		return "-"
+	}
+	return fmt.Sprintf("%.4f", *v)
 }
 
 // pad left-aligns s in a field of width runes.

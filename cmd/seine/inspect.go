@@ -86,16 +86,16 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 }
 
 func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, rows int) {
-	name := s.Name
+	name := safe(s.Name)
 	if name == "" {
 		name = "(unnamed)"
 	}
-	fmt.Fprintf(w, "%s %s (%s)\n", kind, name, path)
+	fmt.Fprintf(w, "%s %s (%s)\n", kind, name, safe(path))
 	fmt.Fprintf(w, "  %d inputs", s.Inputs)
 	if s.Features != nil {
-		fmt.Fprintf(w, " (%s)", shortList(s.Features, 6))
+		fmt.Fprintf(w, " (%s)", shortList(safeAll(s.Features), 6))
 	}
-	fmt.Fprintf(w, "; %d classes (%s)", len(s.Output.Classes), shortList(s.Output.Classes, 8))
+	fmt.Fprintf(w, "; %d classes (%s)", len(s.Output.Classes), shortList(safeAll(s.Output.Classes), 8))
 	if s.Output.Multilabel {
 		fmt.Fprint(w, ", multi-label")
 	}
@@ -143,8 +143,8 @@ func optimState(o spec.Optimizer) (string, int) {
 
 func writeModelSummary(w io.Writer, m *nn.Model) {
 	sm := m.Summary
-	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", sm.Method, sm.Iterations, sm.Evaluations, sm.Seconds, sm.Library)
-	fmt.Fprintf(w, "  stopped         %s\n", stopReason(sm.Status))
+	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", safe(sm.Method), sm.Iterations, sm.Evaluations, sm.Seconds, safe(sm.Library))
+	fmt.Fprintf(w, "  stopped         %s\n", safe(stopReason(sm.Status)))
 	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)
 	writeEncoder(w, m.Encoder())
 	fmt.Fprintf(w, "  training rows   %d: cost %s, accuracy %s\n", sm.TrainRows, numText(sm.Cost, 1, "%.6g"), numText(sm.TrainAccuracy, 100, "%.2f%%"))

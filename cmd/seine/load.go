@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"errors"
 	"fmt"
 	"io"
@@ -11,6 +10,7 @@ import (
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/atomicfile"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/spec"
 )
@@ -118,34 +118,11 @@ func openError(what string, err error) error {
 }
 
 // writeAtomic writes a file at path through write without ever leaving a
-// half-written file or losing the old one: it writes a temporary file in the
-// same folder and renames it over path only when write and the close
-// succeeded. On failure the temporary file is removed and path is untouched.
-func writeAtomic(path string, write func(w io.Writer) error) (err error) {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if err = tmp.Chmod(0o644); err != nil {
-		return err
-	}
-	bw := bufio.NewWriter(tmp)
-	if err = write(bw); err != nil {
-		return err
-	}
-	if err = bw.Flush(); err != nil {
-		return err
-	}
-	if err = tmp.Close(); err != nil {
-		return err
-	}
-	return os.Rename(tmp.Name(), path)
+// half-written file or losing the old one (internal/atomicfile: a synced
+// temporary file renamed over the target, written through a symbolic link,
+// keeping an existing file's mode).
+func writeAtomic(path string, write func(w io.Writer) error) error {
+	return atomicfile.Write(path, write)
 }
 
 // checkWritable reports early whether a file can be created beside path, so

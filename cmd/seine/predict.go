@@ -12,13 +12,20 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/spec"
 )
 
 const predictHelp = `Writes CSV: a header, then one line per data row in the input's order. The
-first column, "class", holds the most probable class; for a multi-label
-model it is named "classes" and holds the classes whose probability is at
-least -threshold, joined with '|' ("" when none). With -probabilities a
+first column, "class", holds the class decided for the row: the most
+probable class, or for a binary sigmoid model with an operating threshold
+(chosen by train -threshold-rule, or given with -threshold) the second
+class when its probability is at least the threshold. For a multi-label
+model the column is named "classes" and holds the classes whose
+probability is at least their threshold (the model's, else 0.5, or
+-threshold for all), joined with '|' ("" when none). Softmax models always
+take the most probable class. With -probabilities a
 column "p_CLASS" per class follows, with the probability written so that it
 reads back to the same float64.
 
@@ -41,7 +48,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	probs := fs.Bool("probabilities", false, "add one probability column per class")
 	label := fs.String("label", "", "name of a label `COLUMN` to ignore (default: the model's)")
 	keep := fs.String("keep", "", "comma-separated `COLUMNS` copied from the input to the output, e.g. id,ts, to join rows back")
-	threshold := fs.Float64("threshold", 0, "multi-label only: probability in (0, 1) at which a class is predicted (default 0.5)")
+	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class is predicted (default the model's operating thresholds, else 0.5)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -62,11 +69,9 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if *threshold != 0 && !m.Multilabel() {
-		return usagef("-threshold applies to multi-label models only; %s picks the most probable class", *modelPath)
-	}
-	if *threshold == 0 {
-		*threshold = 0.5
+	thresholds, err := decisionThresholds(m, *threshold, *modelPath)
+	if err != nil {
+		return err
 	}
 	opt := dataForModel(m, *label, true)
 	if *keep != "" {
@@ -83,7 +88,10 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return prefixLines(*dataPath, err)
 	}
-	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, *threshold) }
+	if err := checkFinite(p, set, *dataPath); err != nil {
+		return err
+	}
+	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, thresholds) }
 	if *out == "" {
 		bw := bufio.NewWriter(e.stdout)
 		if err := write(bw); err != nil {
@@ -99,7 +107,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 }
 
 // writePredictions writes the CSV of predict for the probabilities p.
-func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kept [][]string, probs bool, threshold float64) error {
+func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kept [][]string, probs bool, thresholds []float64) error {
 	cw := csv.NewWriter(w)
 	head := append(slices.Clone(keep), "class")
 	nk := len(keep)
@@ -122,7 +130,11 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 		if m.Multilabel() {
 			set = set[:0]
 			for j, v := range row {
-				if v >= threshold {
+				t := 0.5
+				if thresholds != nil {
+					t = thresholds[j]
+				}
+				if v >= t {
 					set = append(set, m.Classes[j])
 				}
 			}
@@ -132,6 +144,12 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 			for j := 1; j < k; j++ {
 				if row[j] > row[best] {
 					best = j
+				}
+			}
+			if thresholds != nil { // binary sigmoid: class 1 when p₁ ≥ t
+				best = 0
+				if row[1] >= thresholds[0] {
+					best = 1
 				}
 			}
 			rec[nk] = m.Classes[best]
@@ -160,4 +178,51 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// decisionThresholds returns the operating thresholds that predict and
+// evaluate apply to m's probabilities: override (from -threshold) for
+// every sigmoid class, else the model's own (nil for none: 0.5 for
+// multi-label models, the most probable class otherwise). A softmax model
+// takes no threshold.
+func decisionThresholds(m *nn.Model, override float64, path string) ([]float64, error) {
+	sigmoid := m.Spec.Output.Activation == spec.Sigmoid
+	if override == 0 {
+		if !sigmoid {
+			return nil, nil
+		}
+		return m.Decision.Thresholds, nil
+	}
+	switch {
+	case !sigmoid:
+		return nil, usagef("-threshold applies to sigmoid outputs only; %s is a softmax model, which takes the most probable class", path)
+	case m.Multilabel():
+		t := make([]float64, len(m.Classes))
+		for i := range t {
+			t[i] = override
+		}
+		return t, nil
+	case len(m.Classes) == 2:
+		return []float64{override}, nil
+	}
+	return nil, usagef("-threshold: %s has %d independent sigmoid classes but is not multi-label", path, len(m.Classes))
+}
+
+// checkFinite reports the first row whose probabilities are not finite
+// (params near the float64 range can overflow on ordinary rows), naming
+// the file and line, so that predict never prints NaN.
+func checkFinite(p *mat.Dense, set *data.Set, path string) error {
+	r, _ := p.Dims()
+	for i := range r {
+		for _, v := range p.RawRowView(i) {
+			if !(v >= 0 && v <= 1) {
+				line := i + 2
+				if set.Lines != nil {
+					line = set.Lines[i]
+				}
+				return fmt.Errorf("%s: line %d (row %d): the model's probabilities are %v, not finite: its params overflow on this row", path, line, i+1, v)
+			}
+		}
+	}
+	return nil
 }

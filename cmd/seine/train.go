@@ -8,11 +8,13 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
+	"github.com/seine-ml/seine/score"
 	"github.com/seine-ml/seine/spec"
 	"github.com/seine-ml/seine/train"
 )
@@ -41,6 +43,16 @@ of the best iteration so far is saved to -out, a line on standard error says
 which, and the exit status is 1 because the run did not finish. Interrupted
 before the first iteration ends, nothing is written.
 
+-calibrate fits one temperature T on the holdout rows (temperature scaling,
+Guo et al. 2017) so that the probabilities match observed frequencies, and
+prints the holdout ECE before and after. -threshold-rule chooses operating
+thresholds for sigmoid outputs on the holdout rows: max-f1, recall:R (the
+highest precision among thresholds with recall ≥ R) or precision:P (the
+highest recall with precision ≥ P); one for a binary model, one per class
+for a multi-label model. Both are stored in the model and used by predict,
+evaluate and the Go API; the summary prints the choice and the holdout
+figures there. Softmax models always take the most probable class.
+
 -checkpoint FILE saves the current params as a model file every -every
 iterations, replaced atomically like -out. -resume FILE starts from the
 params of a model or checkpoint file whose net matches the spec; resume with
@@ -58,7 +70,10 @@ type trainFlags struct {
 	patience               int
 	checkpoint, resume     string
 	every                  int
-	set                    map[string]bool // flags given on the command line
+	calibrate              bool
+	thresholdRule          string
+	rule                   *train.ThresholdRule // parsed from thresholdRule
+	set                    map[string]bool      // flags given on the command line
 }
 
 func runTrain(ctx context.Context, e *env, args []string) error {
@@ -81,6 +96,8 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	fs.StringVar(&f.checkpoint, "checkpoint", "", "also save the current params to this model `FILE` during the run")
 	fs.IntVar(&f.every, "every", 0, "checkpoint every `N` iterations (default a tenth of the iteration limit)")
 	fs.StringVar(&f.resume, "resume", "", "start from the params of this model or checkpoint `FILE`")
+	fs.BoolVar(&f.calibrate, "calibrate", false, "fit a temperature on the holdout rows so that probabilities match frequencies (needs -holdout)")
+	fs.StringVar(&f.thresholdRule, "threshold-rule", "", "choose operating thresholds on the holdout rows (sigmoid outputs; needs -holdout): max-f1, recall:R (highest precision with recall ≥ R) or precision:P (highest recall with precision ≥ P)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -126,6 +143,9 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		KeepBest: f.keepBest,
 		Patience: f.patience,
 		NoScale:  !f.standardize,
+
+		Calibrate:  f.calibrate,
+		Thresholds: f.rule,
 	}
 	if f.resume != "" {
 		if cfg.Start, err = resumeParams(f.resume, s); err != nil {
@@ -191,6 +211,15 @@ func (f *trainFlags) check() error {
 		return usagef("-every %d: want a count ≥ 0", f.every)
 	case f.set["every"] && f.checkpoint == "":
 		return usagef("-every needs -checkpoint FILE")
+	case (f.calibrate || f.thresholdRule != "") && f.holdout == 0:
+		return usagef("-calibrate and -threshold-rule are fitted on holdout rows: add -holdout FRACTION")
+	}
+	if f.thresholdRule != "" {
+		r, err := parseThresholdRule(f.thresholdRule)
+		if err != nil {
+			return err
+		}
+		f.rule = r
 	}
 	if f.optimizer != "" {
 		if _, ok := spec.ParseOptimizer(f.optimizer); !ok {
@@ -397,4 +426,50 @@ func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keep
 	if keepBest {
 		row("kept", "params of iteration %d (lowest holdout cost)", res.BestIter)
 	}
+	if t := m.Decision.Temperature; t != 0 && t != 1 {
+		row("calibration", "temperature %.4g; holdout ECE %.4f → %.4f", t, sm.HoldoutECEBefore, sm.HoldoutECE)
+	}
+	for _, op := range sm.Operating {
+		row("threshold", "%s ≥ %.4g (%s): holdout precision %.4f, recall %.4f, F1 %.4f", op.Class, op.Threshold, ruleText(m.Decision), op.Precision, op.Recall, op.F1)
+	}
+}
+
+// ruleText names how a decision's thresholds were chosen.
+func ruleText(d nn.Decision) string {
+	switch d.Rule {
+	case "target-recall":
+		return fmt.Sprintf("highest precision with recall ≥ %g", d.Target)
+	case "target-precision":
+		return fmt.Sprintf("highest recall with precision ≥ %g", d.Target)
+	case "max-f1":
+		return "highest F1"
+	}
+	return d.Rule
+}
+
+// parseThresholdRule reads -threshold-rule: max-f1, recall:R or
+// precision:P with R, P in (0, 1].
+func parseThresholdRule(text string) (*train.ThresholdRule, error) {
+	name, num, hasNum := strings.Cut(text, ":")
+	var r train.ThresholdRule
+	switch name {
+	case "max-f1":
+		if hasNum {
+			return nil, usagef("-threshold-rule %s: max-f1 takes no target", text)
+		}
+		r.Rule = score.MaxF1
+		return &r, nil
+	case "recall":
+		r.Rule = score.TargetRecall
+	case "precision":
+		r.Rule = score.TargetPrecision
+	default:
+		return nil, usagef("-threshold-rule %q: want max-f1, recall:R or precision:P (e.g. recall:0.9)", text)
+	}
+	v, err := strconv.ParseFloat(num, 64)
+	if !hasNum || err != nil || !(v > 0 && v <= 1) {
+		return nil, usagef("-threshold-rule %s: want a target in (0, 1] after the colon, e.g. %s:0.9", text, name)
+	}
+	r.Target = v
+	return &r, nil
 }

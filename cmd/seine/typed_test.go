@@ -159,3 +159,20 @@ func TestTypedInputErrors(t *testing.T) {
 		})
 	}
 }
+
+// inspect escapes control characters in every string that came from the
+// model file, so a crafted file cannot move the cursor or retitle the
+// terminal (issue 13).
+func TestInspectEscapesControls(t *testing.T) {
+	dir := t.TempDir()
+	sp := writeFile(t, dir, "c.yaml", "version: 1\nname: \"evil\\e]0;owned\\a\"\ninputs:\n  - \"x\\e[2J\"\n  - y\noutput:\n  classes: [\"a\\e[1m\", b]\ntrain:\n  iterations: 2\n")
+	csvPath := writeFile(t, dir, "d.csv", "\"x\x1b[2J\",y,class\n1,2,a\x1b[1m\n2,1,b\n3,3,a\x1b[1m\n")
+	model := filepath.Join(dir, "m.seine.json")
+	r := seine(t, "train", "-spec", sp, "-data", csvPath, "-out", model, "-quiet")
+	require.Equal(t, 0, r.code, r.stderr)
+	r = seine(t, "inspect", "-model", model)
+	require.Equal(t, 0, r.code, r.stderr)
+	assert.NotContains(t, r.stdout, "\x1b")
+	assert.NotContains(t, r.stdout, "\a")
+	assert.Contains(t, r.stdout, `evil\x1b]0;owned\a`)
+}
