@@ -61,34 +61,40 @@ func FitScalerNamed(x mat.Matrix, names []string) (s *Scaler, warnings []string)
 
 // meanSD returns the mean and sample standard deviation of v, and whether
 // v is constant (all values equal, or fewer than two, or a spread that
-// does not register in float64).
+// does not register in float64). It cannot overflow for finite values:
+// when the largest magnitude M is beyond 1e150 it works on v/M (exact up to
+// rounding, every term in [−1, 1]) and scales the results back, and a
+// standard deviation beyond the float64 range is capped at its largest
+// value, which still scales every finite value to a finite one.
 func meanSD(v []float64) (mean, sd float64, constant bool) {
-	n := float64(len(v))
 	constant = true
+	var big float64
 	for _, a := range v {
-		mean += a
 		if a != v[0] {
 			constant = false
 		}
+		big = max(big, math.Abs(a))
+	}
+	scale := 1.0
+	if big > 1e150 {
+		scale = big
+	}
+	n := float64(len(v))
+	for _, a := range v {
+		mean += a / scale
 	}
 	mean /= n
-	if math.IsInf(mean, 0) { // the sum overflowed: average term by term
-		mean = 0
-		for _, a := range v {
-			mean += a / n
-		}
-	}
 	if constant || len(v) < 2 {
-		return mean, 1, true
+		return mean * scale, 1, true
 	}
 	var ss, comp float64
 	for _, a := range v {
-		d := a - mean
+		d := a/scale - mean
 		ss += d * d
 		comp += d
 	}
 	sd = math.Sqrt((ss - comp*comp/n) / (n - 1))
-	if !(sd >= 1e-150 && sd <= 1e150) { // squares may have overflowed or underflowed: scale by the largest deviation
+	if !(sd >= 1e-150) && scale == 1 { // squares may have underflowed: scale by the largest deviation
 		var m float64
 		for _, a := range v {
 			m = max(m, math.Abs(a-mean))
@@ -100,7 +106,12 @@ func meanSD(v []float64) (mean, sd float64, constant bool) {
 		}
 		sd = m * math.Sqrt(ss/(n-1))
 	}
-	if !(sd > 0) || math.IsInf(sd, 0) {
+	mean *= scale
+	sd *= scale
+	if math.IsInf(sd, 1) {
+		sd = math.MaxFloat64
+	}
+	if !(sd > 0) {
 		return mean, 1, true
 	}
 	return mean, sd, false

@@ -364,11 +364,13 @@ func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batc
 	if err != nil {
 		return nil, err
 	}
-	full, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Workers: workers})
+	weights, wwarn := train.ClassWeights(s, trainSet)
+	warn = append(warn, wwarn...)
+	full, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Workers: workers, ClassWeights: weights})
 	if err != nil {
 		return nil, fmt.Errorf("diag: training rows: %w", err)
 	}
-	batched, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Batch: batch, Workers: workers})
+	batched, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Batch: batch, Workers: workers, ClassWeights: weights})
 	if err != nil {
 		return nil, fmt.Errorf("diag: training rows: %w", err)
 	}

@@ -251,7 +251,8 @@ func (e *Encoder) Equal(o *Encoder) bool {
 // a missing category under spec.MissingRefuse and a level index out of
 // range give all zeros. It allocates nothing.
 //
-//	number:    u = (x or Fill when x is NaN − Mean) / Scale
+//	number:    u = (x or Fill when x is NaN − Mean) / Scale, computed as
+//	           x/Scale − Mean/Scale where x − Mean overflows
 //	category:  u_k = 1 for k = level index (or Fill's index under
 //	           MissingMode, or k = L under MissingLevel when x is NaN), else 0
 func (e *Encoder) Expand(dst, x []float64) []float64 {
@@ -265,7 +266,12 @@ func (e *Encoder) Expand(dst, x []float64) []float64 {
 			if v != v { // NaN: missing
 				v = in.Fill
 			}
-			dst[in.Offset] = (v - in.Mean) / in.Scale
+			d := v - in.Mean
+			if math.IsInf(d, 0) { // v and Mean far apart near the float64 range
+				dst[in.Offset] = v/in.Scale - in.Mean/in.Scale
+				continue
+			}
+			dst[in.Offset] = d / in.Scale
 			continue
 		}
 		u := dst[in.Offset : in.Offset+in.Units()]

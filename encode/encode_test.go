@@ -407,3 +407,30 @@ func TestEncodeSetErrors(t *testing.T) {
 	assert.Equal(t, []data.ColumnCount{{Column: "plan", N: 10}}, list.More)
 	assert.Contains(t, err.Error(), `and 10 more in column "plan"`)
 }
+
+// A number column whose values lie near both ends of the float64 range
+// (issue 13): the scaler must not overflow (data.FitScaler works on v/M
+// for a largest magnitude M), and the units must be finite.
+func TestExtremeColumn(t *testing.T) {
+	col := []float64{1.7e308, -1.7e308, 1.6e308, -1.5e308, 0}
+	s := netOf([]string{"v"}, []spec.Input{{}})
+	set := setOf([][]float64{col}, nil, []string{"v"})
+	e, _, err := Fit(s, set, Options{})
+	require.NoError(t, err)
+	in := e.Inputs()[0]
+	require.False(t, math.IsInf(in.Scale, 0) || math.IsNaN(in.Scale) || math.IsNaN(in.Mean))
+	u, err := e.EncodeSet(set)
+	require.NoError(t, err)
+	for i := range col {
+		v := u.At(i, 0)
+		assert.False(t, math.IsInf(v, 0) || math.IsNaN(v), "row %d: %v", i, v)
+	}
+	// Standardised values keep their order and sign around the mean.
+	assert.Greater(t, u.At(0, 0), u.At(2, 0))
+	assert.Less(t, u.At(1, 0), u.At(3, 0))
+	// Worked in units of 1e308: the mean of 1.7, −1.7, 1.6, −1.5, 0 is
+	// 0.1/5 = 0.02; the deviations 1.68, −1.72, 1.58, −1.52, −0.02 have
+	// squares summing to 10.588, so the sample SD is √(10.588/4) ≈ 1.62696.
+	assert.InDelta(t, 2e306, in.Mean, 1e293)
+	assert.InDelta(t, math.Sqrt(10.588/4)*1e308, in.Scale, 1e295)
+}

@@ -378,8 +378,18 @@ func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
 	}
 	r, _ := coded.Dims()
 	out := mat.NewDense(r, e.width, nil)
+	var errs errorList
 	for i := range r {
-		e.Expand(out.RawRowView(i), coded.RawRowView(i))
+		u := e.Expand(out.RawRowView(i), coded.RawRowView(i))
+		for j := range e.inputs {
+			in := &e.inputs[j]
+			if in.Type == spec.NumberInput && math.IsInf(u[in.Offset], 0) {
+				errs.add(set, i, in.Name, describe(ErrNotFinite, "%v scales to %v: the value is too far from the training rows' (mean %.6g, scale %.6g) to be represented", coded.At(i, j), u[in.Offset], in.Mean, in.Scale))
+			}
+		}
+	}
+	if err := errs.err(); err != nil {
+		return nil, err
 	}
 	return out, nil
 }

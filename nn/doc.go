@@ -45,6 +45,19 @@
 // (λ = Penalty.L2, λ₁ = Penalty.L1). The L1 term uses the subgradient
 // sign(w), 0 at w = 0.
 //
+// With class weights w_k (ObjectiveOptions.ClassWeights) each row's term is
+// weighted by its classes, and the penalty is not:
+//
+//	softmax:  J₀ = (1/m) Σ_i Σ_k w_k y_k (lse(z) − z_k)
+//	sigmoid:  J₀ = (1/m) Σ_i Σ_k [a_k softplus(−z_k) + b_k softplus(z_k)],
+//	          a_k = pos_k y_k, b_k = neg_k (1 − y_k),
+//
+// where a binary sigmoid unit takes pos = w_1 and neg = w_0 (the weights of
+// its two classes) and multi-label units take pos_k = w_k and neg_k = 1 (a
+// weight on the positive side of each class). Weights of 1 give the cost
+// above bit for bit. Balanced weights w_k = m/(K·m_k), with m_k the rows
+// of class k, make every class weigh as much in total (common practice).
+//
 // A mini-batch B_k of b_k rows has the cost
 //
 //	J_k = (1/b_k) Σ_{i∈B_k} loss_i + (the same penalty, with the full m),
@@ -59,6 +72,8 @@
 //
 //	Δ_L = H − Y                      (sigmoid; and softmax with Σ_k y_k = 1)
 //	Δ_L = (Σ_k y_k)·H − Y, per row   (softmax in general)
+//	Δ_L = (A + B) ⊙ H − A            (weighted sigmoid)
+//	Δ_L = (Σ_k w_k y_k)·H − W ⊙ Y    (weighted softmax)
 //
 // and, for l = L−1 … 0,
 //

@@ -1,11 +1,14 @@
 package nn
 
 import (
+	"errors"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/diff/fd"
+	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
 )
@@ -115,5 +118,73 @@ func TestGradientFiniteDifferenceBatch(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// The class-weighted cost's gradient against gonum's diff/fd, for every
+// hidden activation and output kind (softmax, multi-label sigmoid, binary
+// sigmoid), with and without a penalty, in full and in mini-batches.
+// Weights far from 1 (0.25 to 6) make a dropped or misplaced factor show.
+func TestGradientFiniteDifferenceWeighted(t *testing.T) {
+	for i, c := range gradCases() {
+		if c.pen.name != "none" && c.pen.name != "l1-l2-bias" {
+			continue
+		}
+		t.Run(c.name(), func(t *testing.T) {
+			k := 3
+			if c.k == outBinary {
+				k = 2
+			}
+			w := []float64{0.25, 6, 1.5}[:k]
+			for _, batch := range []int{0, 3} {
+				o, p := c.setup(t, uint64(300+i), ObjectiveOptions{Chunk: 3, Workers: 2, Batch: batch, ClassWeights: w})
+				g := make([]float64, len(p))
+				o.EvalBatch(g, p, 0)
+				ref := fd.Gradient(nil, func(q []float64) float64 { return o.EvalBatch(nil, q, 0) }, p, &fd.Settings{Formula: fd.Central})
+				if e := relErr(g, ref, fdFloor); e > fdTol {
+					t.Errorf("batch %d: relative error %.3g > %g", batch, e, fdTol)
+				}
+			}
+		})
+	}
+}
+
+// Weights of 1 give the unweighted cost and gradient bit for bit, and a
+// weight w_k on every class scales the cross-entropy of a softmax net by w
+// (the penalty aside) for softmax and binary outputs, where every row's
+// term carries one class's weight.
+func TestClassWeightsIdentities(t *testing.T) {
+	for _, k := range []outKind{outSoftmax, outMulti, outBinary} {
+		c := gradCase{g: spec.Tanh, k: k, pen: penaltyCases[0]}
+		nc := 3
+		if k == outBinary {
+			nc = 2
+		}
+		ones, threes := make([]float64, nc), make([]float64, nc)
+		for i := range ones {
+			ones[i], threes[i] = 1, 3
+		}
+		plain, p := c.setup(t, 7, ObjectiveOptions{Chunk: 3})
+		one, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: ones})
+		three, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: threes})
+		g1, g2 := make([]float64, len(p)), make([]float64, len(p))
+		f1, f2 := plain.Eval(g1, p), one.Eval(g2, p)
+		if f1 != f2 {
+			t.Errorf("%v: weights of 1 change the cost: %v vs %v", k, f1, f2)
+		}
+		for i := range g1 {
+			if g1[i] != g2[i] {
+				t.Fatalf("%v: weights of 1 change gradient %d: %v vs %v", k, i, g1[i], g2[i])
+			}
+		}
+		// Multi-label weights apply to the positive side only, so there
+		// the factor is not global.
+		if f3 := three.Eval(nil, p); k != outMulti && math.Abs(f3-3*f1) > 1e-13*f3 {
+			t.Errorf("%v: weights of 3 give cost %v, want 3 × %v", k, f3, f1)
+		}
+	}
+	_, err := NewObjective(mustCompile(t, testSpec(4, nil, spec.Tanh, outSoftmax)), mat.NewDense(1, 4, nil), mat.NewDense(1, 3, []float64{1, 0, 0}), ObjectiveOptions{ClassWeights: []float64{1, 0, 1}})
+	if !errors.Is(err, ErrOption) {
+		t.Errorf("a zero weight: %v", err)
 	}
 }

@@ -35,6 +35,11 @@ type ObjectiveOptions struct {
 	// Workers is the number of goroutines that evaluate chunks, ≥ 0; 0
 	// means runtime.GOMAXPROCS(0). Results are bit-identical for any value.
 	Workers int
+	// ClassWeights are per-class factors w_k > 0 on the cross-entropy, one
+	// per class in y's column order; nil weighs every class 1 (see the
+	// package documentation for the weighted cost). The penalty is not
+	// weighted.
+	ClassWeights []float64
 }
 
 // chunk is a block of consecutive rows: features x and targets t.
@@ -95,6 +100,18 @@ func NewObjective(n *Net, x, y *mat.Dense, opt ObjectiveOptions) (*Objective, er
 	if err := checkValues("y", y, true); err != nil {
 		return nil, err
 	}
+	var cw *classWeights
+	if opt.ClassWeights != nil {
+		if len(opt.ClassWeights) != classes {
+			return nil, fmt.Errorf("%w: %d class weights for %d classes", ErrOption, len(opt.ClassWeights), classes)
+		}
+		for k, v := range opt.ClassWeights {
+			if !(v > 0) || math.IsInf(v, 1) {
+				return nil, fmt.Errorf("%w: class weight %d is %v, want a finite number > 0", ErrOption, k, v)
+			}
+		}
+		cw = newClassWeights(n, opt.ClassWeights)
+	}
 	K := n.Outputs()
 	o := &Objective{net: n, m: m, x: x.RawMatrix()}
 	if K == 1 && classes == 2 && n.spec.Output.Activation == spec.Sigmoid {
@@ -133,6 +150,9 @@ func NewObjective(n *Net, x, y *mat.Dense, opt ObjectiveOptions) (*Objective, er
 	}
 	workers = min(workers, len(o.full))
 	o.eng = newEngine(n, workers, min(size, m))
+	for _, w := range o.eng.works {
+		w.cw = cw
+	}
 	runtime.AddCleanup(o, func(e *engine) { e.stop() }, o.eng)
 	return o, nil
 }

@@ -63,6 +63,35 @@ type work struct {
 	z, a, d [][]float64
 	grad    []float64
 	loss    float64
+	cw      *classWeights // nil: every class weighs 1
+}
+
+// classWeights are the factors of the weighted cross-entropy per output
+// unit: for softmax w[k] on class k; for sigmoid units pos[k] on the
+// positive side (y_k = 1) and neg[k] on the negative side.
+type classWeights struct {
+	w, pos, neg []float64
+}
+
+// newClassWeights lays the per-class weights of classes out per output
+// unit of n: softmax units take w_k; a binary sigmoid unit (classes c0,
+// c1) takes w_1 on its positive and w_0 on its negative side; multi-label
+// sigmoid units take w_k on the positive side and 1 on the negative.
+func newClassWeights(n *Net, classes []float64) *classWeights {
+	cw := &classWeights{}
+	switch {
+	case n.spec.Output.Activation == spec.Softmax:
+		cw.w = append([]float64(nil), classes...)
+	case n.Outputs() == 1:
+		cw.pos, cw.neg = []float64{classes[1]}, []float64{classes[0]}
+	default:
+		cw.pos = append([]float64(nil), classes...)
+		cw.neg = make([]float64, len(classes))
+		for k := range cw.neg {
+			cw.neg[k] = 1
+		}
+	}
+	return cw
 }
 
 func newWork(n *Net, rows int, backward bool) *work {
@@ -145,7 +174,12 @@ func probabilities(g spec.Activation, h []float64, z blas64.General) {
 //
 //	sigmoid: loss = Σ_k softplus(z_k) − y_k z_k,   ∂/∂z_k = σ(z_k) − y_k
 //	softmax: loss = Σ_k y_k (lse(z) − z_k),        ∂/∂z_k = (Σ_j y_j)·h_k − y_k
-func outputLoss(g spec.Activation, d []float64, z, t blas64.General) float64 {
+//
+// With class weights cw (non-nil) the weighted forms of weightedLoss.
+func outputLoss(g spec.Activation, d []float64, z, t blas64.General, cw *classWeights) float64 {
+	if cw != nil {
+		return weightedLoss(g, d, z, t, cw)
+	}
 	K := z.Cols
 	total := 0.0
 	for i := 0; i < z.Rows; i++ {
@@ -192,6 +226,61 @@ func outputLoss(g spec.Activation, d []float64, z, t blas64.General) float64 {
 	return total
 }
 
+// weightedLoss is outputLoss with class weights (King & Zeng 2001 discuss
+// weighting the likelihood of rare events; the balanced weights are common
+// practice):
+//
+//	sigmoid: a_k = pos_k·y_k, b_k = neg_k·(1−y_k),
+//	         loss = Σ_k a_k softplus(−z_k) + b_k softplus(z_k)
+//	              = Σ_k (a_k+b_k) softplus(z_k) − a_k z_k,
+//	         ∂/∂z_k = (a_k+b_k) σ(z_k) − a_k
+//	softmax: loss = Σ_k w_k y_k (lse(z) − z_k),
+//	         ∂/∂z_k = (Σ_j w_j y_j)·h_k − w_k y_k
+//
+// Weights of 1 give the unweighted forms.
+func weightedLoss(g spec.Activation, d []float64, z, t blas64.General, cw *classWeights) float64 {
+	K := z.Cols
+	total := 0.0
+	for i := 0; i < z.Rows; i++ {
+		zi := z.Data[i*z.Stride : i*z.Stride+K]
+		yi := t.Data[i*t.Stride : i*t.Stride+K]
+		if g == spec.Sigmoid {
+			for k, v := range zi {
+				a, b := cw.pos[k]*yi[k], cw.neg[k]*(1-yi[k])
+				total += (a+b)*softplus(v) - a*v
+				if d != nil {
+					d[i*K+k] = (a+b)*sigmoid(v) - a
+				}
+			}
+			continue
+		}
+		mx := math.Inf(-1)
+		for _, v := range zi {
+			mx = math.Max(mx, v)
+		}
+		s := 0.0
+		for _, v := range zi {
+			s += math.Exp(v - mx)
+		}
+		lse := mx + math.Log(s)
+		sy := 0.0
+		for k, v := range zi {
+			if y := yi[k]; y != 0 {
+				wy := cw.w[k] * y
+				total += wy * (lse - v)
+				sy += wy
+			}
+		}
+		if d != nil {
+			di := d[i*K : (i+1)*K]
+			for k, v := range zi {
+				di[k] = sy*math.Exp(v-lse) - cw.w[k]*yi[k]
+			}
+		}
+	}
+	return total
+}
+
 // eval sets w.loss to the summed loss of the rows x with targets t and, when
 // backward, w.grad to the summed gradient by backpropagation (Rumelhart,
 // Hinton & Williams 1986):
@@ -203,10 +292,10 @@ func (w *work) eval(n *Net, params []float64, x, t blas64.General, backward bool
 	L := n.NumLayers()
 	zL := w.forward(n, params, x)
 	if !backward {
-		w.loss = outputLoss(n.act[L-1], nil, zL, t)
+		w.loss = outputLoss(n.act[L-1], nil, zL, t, w.cw)
 		return
 	}
-	w.loss = outputLoss(n.act[L-1], w.d[L-1], zL, t)
+	w.loss = outputLoss(n.act[L-1], w.d[L-1], zL, t, w.cw)
 	for l := L - 1; l >= 0; l-- {
 		in, out := n.sizes[l], n.sizes[l+1]
 		dl := mat64(w.d[l], r, out)

@@ -62,11 +62,21 @@ func (e *Error) Unwrap() error { return e.Err }
 // ErrorList is several problems found in one spec, sorted by position.
 type ErrorList []*Error
 
-// Error returns the problems one per line.
+// MaxListed is the number of problems an ErrorList's message lists one by
+// one; the rest are counted in a last line, so that a spec with fifty
+// thousand duplicate names does not print fifty thousand lines.
+const MaxListed = 20
+
+// Error returns the first MaxListed problems one per line, then a line
+// counting the rest.
 func (l ErrorList) Error() string {
-	s := make([]string, len(l))
-	for i, e := range l {
+	n := min(len(l), MaxListed)
+	s := make([]string, n, n+1)
+	for i, e := range l[:n] {
 		s[i] = e.Error()
+	}
+	if len(l) > n {
+		s = append(s, fmt.Sprintf("and %d more problems", len(l)-n))
 	}
 	return strings.Join(s, "\n")
 }

@@ -2,6 +2,7 @@ package spec
 
 import (
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"reflect"
@@ -319,5 +320,28 @@ func TestClone(t *testing.T) {
 	assert.Nil(t, m.Train.ClassWeights.By)
 	if (*Network)(nil).Clone() != nil {
 		t.Error("Clone of nil is not nil")
+	}
+}
+
+// A spec with thousands of duplicate class names reports them all in the
+// list, but its message lists 20 and counts the rest (issue 13).
+func TestErrorListCapped(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("version: 1\ninputs: 2\noutput:\n  classes: [")
+	for i := range 5000 {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString("same")
+	}
+	b.WriteString("]\n")
+	_, err := Parse(strings.NewReader(b.String()))
+	var list ErrorList
+	if !errors.As(err, &list) {
+		t.Fatalf("want an ErrorList, got %v", err)
+	}
+	lines := strings.Split(err.Error(), "\n")
+	if len(lines) != MaxListed+1 || lines[MaxListed] != fmt.Sprintf("and %d more problems", len(list)-MaxListed) {
+		t.Errorf("%d problems gave %d lines, last %q", len(list), len(lines), lines[len(lines)-1])
 	}
 }

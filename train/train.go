@@ -199,7 +199,9 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if err != nil {
 		return nil, err
 	}
-	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers})
+	weights, wwarn := ClassWeights(s, set)
+	warn = append(warn, wwarn...)
+	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers, ClassWeights: weights})
 	if err != nil {
 		return nil, fmt.Errorf("train: training rows: %w", err)
 	}
@@ -272,15 +274,16 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	}
 	model.Label = set.Label
 	model.Summary = nn.Summary{
-		Method:      methodName(method),
-		Iterations:  run.Iterations,
-		Evaluations: run.Evaluations,
-		Seconds:     time.Since(start).Seconds(),
-		Status:      run.Status.String(),
-		Cost:        obj.Eval(nil, params),
-		TrainRows:   set.Rows(),
-		Seed:        seed,
-		Library:     nn.Version,
+		Method:       methodName(method),
+		Iterations:   run.Iterations,
+		Evaluations:  run.Evaluations,
+		Seconds:      time.Since(start).Seconds(),
+		Status:       run.Status.String(),
+		Cost:         obj.Eval(nil, params),
+		TrainRows:    set.Rows(),
+		Seed:         seed,
+		Library:      nn.Version,
+		ClassWeights: weights,
 	}
 	ts, err := NewScorer(net, x, set, cfg.Workers)
 	if err != nil {

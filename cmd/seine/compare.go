@@ -156,11 +156,11 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	comps := make([]*diag.Comparison, len(pairs))
 	names := make([]string, len(pairs))
 	for i, p := range pairs {
-		s, err := loadSpec(p.spec)
+		s, err := loadSpec(ctx, p.spec)
 		if err != nil {
 			return err
 		}
-		set, err := loadData(p.data, dataFor(s, *label))
+		set, err := loadData(ctx, p.data, dataFor(s, *label))
 		if err != nil {
 			return err
 		}

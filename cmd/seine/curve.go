@@ -66,11 +66,11 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	s, err := loadSpec(*specPath)
+	s, err := loadSpec(ctx, *specPath)
 	if err != nil {
 		return err
 	}
-	set, err := loadData(*dataPath, dataFor(s, *label))
+	set, err := loadData(ctx, *dataPath, dataFor(s, *label))
 	if err != nil {
 		return err
 	}

@@ -102,7 +102,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
-	m, err := loadModel(*modelPath)
+	m, err := loadModel(ctx, *modelPath)
 	if err != nil {
 		return err
 	}
@@ -113,7 +113,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if *plot != "" && m.Multilabel() {
 		return usagef("-plot: a multi-label model has no confusion matrix (each class is its own yes/no question)")
 	}
-	set, err := loadData(*dataPath, dataForModel(m, *label, false))
+	set, err := loadData(ctx, *dataPath, dataForModel(m, *label, false))
 	if err != nil {
 		return err
 	}

@@ -71,7 +71,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	if *rows < 1 {
 		return usagef("-rows %d: want at least 1", *rows)
 	}
-	s, err := loadSpec(*specPath)
+	s, err := loadSpec(ctx, *specPath)
 	if err != nil {
 		return err
 	}
@@ -81,7 +81,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	var x, y *mat.Dense
 	source := "random"
 	if *dataPath != "" {
-		set, err := loadData(*dataPath, dataFor(s, *label))
+		set, err := loadData(ctx, *dataPath, dataFor(s, *label))
 		if err != nil {
 			return err
 		}

@@ -53,12 +53,12 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	)
 	if *specPath != "" {
 		path = *specPath
-		if s, err = loadSpec(path); err != nil {
+		if s, err = loadSpec(ctx, path); err != nil {
 			return err
 		}
 	} else {
 		path, kind = *modelPath, "model"
-		if m, err = loadModel(path); err != nil {
+		if m, err = loadModel(ctx, path); err != nil {
 			return err
 		}
 		s = m.Spec

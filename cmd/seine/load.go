@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -11,13 +12,14 @@ import (
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/internal/atomicfile"
+	"github.com/seine-ml/seine/internal/ctxio"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/spec"
 )
 
 // loadSpec reads and checks the spec file at path. Every problem is
 // reported as "path:line:column: field: message", one per line.
-func loadSpec(path string) (*spec.Network, error) {
+func loadSpec(ctx context.Context, path string) (*spec.Network, error) {
 	if path == "" {
 		return nil, usagef("-spec is required")
 	}
@@ -26,7 +28,9 @@ func loadSpec(path string) (*spec.Network, error) {
 		return nil, openError("spec", err)
 	}
 	defer f.Close()
-	s, err := spec.Parse(f)
+	r := ctxio.NewReader(ctx, f)
+	defer r.Close()
+	s, err := spec.Parse(r)
 	if err != nil {
 		return nil, prefixLines(path, err)
 	}
@@ -72,7 +76,7 @@ func dataFor(s *spec.Network, label string) data.CSVOptions {
 
 // loadData reads the CSV file at path with opt; errors read
 // "path: line 7 (row 6), column "x": ...".
-func loadData(path string, opt data.CSVOptions) (*data.Set, error) {
+func loadData(ctx context.Context, path string, opt data.CSVOptions) (*data.Set, error) {
 	if path == "" {
 		return nil, usagef("-data is required")
 	}
@@ -81,7 +85,12 @@ func loadData(path string, opt data.CSVOptions) (*data.Set, error) {
 		return nil, openError("data", err)
 	}
 	defer f.Close()
-	set, err := data.ReadCSV(f, opt)
+	r := ctxio.NewReader(ctx, f)
+	defer r.Close()
+	set, err := data.ReadCSV(r, opt)
+	if ctx.Err() != nil {
+		return nil, context.Cause(ctx)
+	}
 	if err != nil {
 		return nil, prefixLines(path, err) // one problem per line, each naming the file
 	}
@@ -91,18 +100,29 @@ func loadData(path string, opt data.CSVOptions) (*data.Set, error) {
 	return set, nil
 }
 
-// loadModel reads the model file at path.
-func loadModel(path string) (*nn.Model, error) {
+// loadModel reads the model file at path. A regular file over the model
+// size limit is refused from its size, before any of it is read, as by
+// nn.Load.
+func loadModel(ctx context.Context, path string) (*nn.Model, error) {
 	if path == "" {
 		return nil, usagef("-model is required")
 	}
-	m, err := nn.Load(path)
+	f, err := os.Open(path)
 	if err != nil {
-		var pe *os.PathError
-		if errors.As(err, &pe) {
-			return nil, openError("model", pe)
-		}
-		return nil, err
+		return nil, openError("model", err)
+	}
+	defer f.Close()
+	if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() && fi.Size() > nn.DefaultMaxModelBytes {
+		return nil, fmt.Errorf("%s: %w: %d bytes, more than %d", path, nn.ErrTooLarge, fi.Size(), int64(nn.DefaultMaxModelBytes))
+	}
+	r := ctxio.NewReader(ctx, f)
+	defer r.Close()
+	m, err := nn.ReadModel(r)
+	if ctx.Err() != nil {
+		return nil, context.Cause(ctx)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	return m, nil
 }

@@ -24,6 +24,7 @@ import (
 	"sort"
 	"strings"
 	"syscall"
+	"time"
 )
 
 // command is one subcommand of the tool.
@@ -79,11 +80,59 @@ func lookup(name string) *command {
 	return nil
 }
 
+// grace is how long a command has, after SIGINT or SIGTERM, to stop on its
+// own (readers and long loops watch the context and end within moments,
+// saving what they promise to save); past it, or on a second signal, the
+// process exits anyway. Files are only ever replaced by renaming a
+// complete temporary file, so an exit at any moment leaves no half-written
+// output.
+const grace = 900 * time.Millisecond
+
+// signalError is the cause of a context cancelled by a signal.
+type signalError struct{ sig os.Signal }
+
+func (e signalError) Error() string { return "stopped by " + signalName(e.sig) }
+
+func signalName(sig os.Signal) string {
+	switch sig {
+	case os.Interrupt:
+		return "SIGINT"
+	case syscall.SIGTERM:
+		return "SIGTERM"
+	}
+	return sig.String()
+}
+
+// status is the exit status of a process stopped by the signal: 128 plus
+// its number, as shells report it (130 for SIGINT, 143 for SIGTERM).
+func (e signalError) status() int {
+	if n, ok := e.sig.(syscall.Signal); ok {
+		return 128 + int(n)
+	}
+	return 130
+}
+
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	sigs := make(chan os.Signal, 2)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	ctx, cancel := context.WithCancelCause(context.Background())
+	go func() {
+		sig := <-sigs
+		se := signalError{sig}
+		cancel(se)
+		select {
+		case <-time.After(grace):
+		case <-sigs:
+		}
+		fmt.Fprintf(os.Stderr, "seine: %v\n", se)
+		os.Exit(se.status())
+	}()
 	e := &env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, terminal: isTerminal(os.Stderr)}
 	code := run(ctx, e, os.Args[1:])
-	stop()
+	var se signalError
+	if code != 0 && errors.As(context.Cause(ctx), &se) {
+		code = se.status()
+	}
 	os.Exit(code)
 }
 

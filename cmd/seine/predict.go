@@ -65,7 +65,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
-	m, err := loadModel(*modelPath)
+	m, err := loadModel(ctx, *modelPath)
 	if err != nil {
 		return err
 	}
@@ -80,7 +80,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 			opt.Keep[i] = strings.TrimSpace(k)
 		}
 	}
-	set, err := loadData(*dataPath, opt)
+	set, err := loadData(ctx, *dataPath, opt)
 	if err != nil {
 		return err
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"math"
@@ -144,7 +145,7 @@ func TestGradientCheck(t *testing.T) {
 
 func mustNet(t *testing.T) *nn.Net {
 	t.Helper()
-	s, err := loadSpec(triageSpec)
+	s, err := loadSpec(context.Background(), triageSpec)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -183,7 +184,7 @@ func TestParamName(t *testing.T) {
 // TestGradientReportFails checks the failing verdict, which a correct
 // backpropagation never produces on the demo spec.
 func TestGradientReportFails(t *testing.T) {
-	s, _ := loadSpec(triageSpec)
+	s, _ := loadSpec(context.Background(), triageSpec)
 	r := gradReport{MaxRelErr: 3e-3, Name: "layer 2 bias [1]", Tolerance: gradTolerance}
 	var out bytes.Buffer
 	err := r.write(&out, false, s)
@@ -209,7 +210,7 @@ func TestInspect(t *testing.T) {
 			t.Errorf("inspect lacks %q:\n%s", w, r.stdout)
 		}
 	}
-	s, _ := loadSpec(triageSpec)
+	s, _ := loadSpec(context.Background(), triageSpec)
 	if n := encode.Placeholder(s).ParamCount(); !strings.Contains(r.stdout, "params          "+strconv.Itoa(n)+" float64") {
 		t.Errorf("param count: want %d:\n%s", n, r.stdout)
 	}

@@ -87,14 +87,14 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	s, err := loadSpec(*specPath)
+	s, err := loadSpec(ctx, *specPath)
 	if err != nil {
 		return err
 	}
 	if len(units) > 0 && len(s.Hidden) == 0 {
 		return usagef("-units: %s has no hidden layer whose units could vary", *specPath)
 	}
-	set, err := loadData(*dataPath, dataFor(s, *label))
+	set, err := loadData(ctx, *dataPath, dataFor(s, *label))
 	if err != nil {
 		return err
 	}

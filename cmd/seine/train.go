@@ -40,8 +40,9 @@ infinite (diverged) exits with status 1 and writes nothing.
 
 Interrupt (Ctrl-C) or SIGTERM stops the run within one evaluation; the model
 of the best iteration so far is saved to -out, a line on standard error says
-which, and the exit status is 1 because the run did not finish. Interrupted
-before the first iteration ends, nothing is written.
+which, and the exit status is 130 (SIGINT) or 143 (SIGTERM) because the run
+did not finish. Interrupted before the first iteration ends, nothing is
+written.
 
 -calibrate fits one temperature T on the holdout rows (temperature scaling,
 Guo et al. 2017) so that the probabilities match observed frequencies, and
@@ -107,7 +108,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 
-	s, err := loadSpec(f.spec)
+	s, err := loadSpec(ctx, f.spec)
 	if err != nil {
 		return err
 	}
@@ -119,7 +120,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	if err := refuseOverwrite("-checkpoint", f.checkpoint, "spec", f.spec, "data", f.data, "-out", f.out); err != nil {
 		return err
 	}
-	set, err := loadData(f.data, dataFor(s, f.label))
+	set, err := loadData(ctx, f.data, dataFor(s, f.label))
 	if err != nil {
 		return err
 	}
@@ -148,7 +149,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		Thresholds: f.rule,
 	}
 	if f.resume != "" {
-		if cfg.Start, err = resumeParams(f.resume, s); err != nil {
+		if cfg.Start, err = resumeParams(ctx, f.resume, s); err != nil {
 			return err
 		}
 	}
@@ -311,8 +312,8 @@ func unwrapSave(err error) error {
 
 // resumeParams reads the params of the model file at path and checks that
 // its net has the shape of s.
-func resumeParams(path string, s *spec.Network) ([]float64, error) {
-	m, err := loadModel(path)
+func resumeParams(ctx context.Context, path string, s *spec.Network) ([]float64, error) {
+	m, err := loadModel(ctx, path)
 	if err != nil {
 		return nil, fmt.Errorf("-resume: %w", err)
 	}

@@ -183,8 +183,8 @@ func TestTrainInterrupt(t *testing.T) {
 	if took > 5*time.Second {
 		t.Errorf("took %v to stop after SIGINT", took)
 	}
-	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 1 {
-		t.Errorf("exit %v, want status 1", err)
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 130 {
+		t.Errorf("exit %v, want status 130 (128 + SIGINT)", err)
 	}
 	if !strings.Contains(rest.String(), "interrupted at iteration") || !strings.Contains(rest.String(), "saved the model of iteration") {
 		t.Errorf("stderr after the signal: %q", rest.String())
