@@ -48,7 +48,7 @@ func runExport(ctx context.Context, e *env, args []string) error {
 	if err := refuseOverwrite("-out", *out, "model", *modelPath); err != nil {
 		return err
 	}
-	m, err := loadModel(*modelPath)
+	m, err := loadModel(ctx, *modelPath)
 	if err != nil {
 		return err
 	}
