@@ -7,6 +7,7 @@ require (
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/netlib v0.0.0-20190313105609-8cb42192e0e0
 	gonum.org/v1/plot v0.17.0
+	google.golang.org/protobuf v1.36.12
 	gopkg.in/yaml.v3 v3.0.1
 )
 

@@ -63,6 +63,7 @@ func commandList() []*command {
 		{name: "evaluate", help: evaluateHelp, args: "-model FILE -data FILE [-json] [-plot FILE]", summary: "score a model on labelled CSV data", run: runEvaluate},
 		{name: "predict", help: predictHelp, args: "-model FILE -data FILE [-out FILE] [-probabilities]", summary: "classify the rows of a CSV file", run: runPredict},
 		{name: "gradient-check", help: gradientCheckHelp, args: "-spec FILE [-data FILE] [-rows N] [-json]", summary: "check backpropagation against finite differences", run: runGradientCheck},
+		{name: "export", help: exportHelp, args: "-model FILE -out FILE [-opset N]", summary: "write a model as an ONNX model for other runtimes", run: runExport},
 		{name: "inspect", help: inspectHelp, args: "-spec FILE | -model FILE [-rows N]", summary: "describe a spec or model: layers, params, memory, FLOPs", run: runInspect},
 		{name: "compare", help: compareHelp, args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
 		{name: "sweep", help: sweepHelp, args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
