@@ -771,14 +771,23 @@ func (m *Model) Save(path string) error {
 	if _, err := m.WriteTo(&buf); err != nil {
 		return fmt.Errorf("nn: saving model %s: %w", path, err)
 	}
-	if _, err := ReadModel(bytes.NewReader(buf.Bytes())); err != nil {
-		return fmt.Errorf("nn: saving model %s: the file would not load, so nothing was written: %w", path, err)
-	}
+	var unloadable error
 	err := atomicfile.Write(path, func(w io.Writer) error {
-		_, err := w.Write(buf.Bytes())
-		return err
+		if _, err := w.Write(buf.Bytes()); err != nil {
+			return err
+		}
+		// Checked while the temporary file is open, before anything is
+		// renamed into place: a failure removes it.
+		if _, err := ReadModel(bytes.NewReader(buf.Bytes())); err != nil {
+			unloadable = err
+			return err
+		}
+		return nil
 	})
-	if err != nil {
+	switch {
+	case unloadable != nil:
+		return fmt.Errorf("nn: saving model %s: the file would not load, so nothing was written: %w", path, unloadable)
+	case err != nil:
 		return fmt.Errorf("nn: saving model %s: %w", path, err)
 	}
 	return nil
