@@ -113,7 +113,7 @@ func TestWarnings(t *testing.T) {
 		return r
 	}
 	quiet := mk(0.99, Class{Name: "ok", Rows: 90, Precision: 0.99, Recall: 0.99}, Class{Name: "fraud", Rows: 10, Precision: 0.9, Recall: 0.8})
-	if w := Warnings(quiet, "holdout"); len(w) != 0 {
+	if w := Warnings(quiet, "holdout", false); len(w) != 0 {
 		t.Errorf("no warning expected: %q", w)
 	}
 	for _, tc := range []struct {
@@ -127,7 +127,7 @@ func TestWarnings(t *testing.T) {
 		{"recall far below precision", mk(0.98, Class{Name: "ok", Rows: 92, Precision: 0.98, Recall: 1}, Class{Name: "fraud", Rows: 8, Precision: 1, Recall: 0.25}), "recall 0.2500 is far below precision 1.0000"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			w := Warnings(tc.r, "holdout")
+			w := Warnings(tc.r, "holdout", false)
 			found := false
 			for _, s := range w {
 				found = found || strings.Contains(s, tc.want)
@@ -136,5 +136,11 @@ func TestWarnings(t *testing.T) {
 				t.Errorf("warnings %q lack %q", w, tc.want)
 			}
 		})
+	}
+	tilted := mk(0.95, Class{Name: "ok", Rows: 97, Precision: 0.99, Recall: 0.95}, Class{Name: "fraud", Rows: 3, Precision: 0.3, Recall: 1})
+	for _, w := range Warnings(tilted, "holdout", true) {
+		if strings.Contains(w, "largest class") {
+			t.Errorf("a tilted model is not warned for accuracy below the majority share: %q", w)
+		}
 	}
 }

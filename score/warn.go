@@ -19,10 +19,14 @@ const MinClassRows = 5
 //     precision: the model is cautious with it and misses most of it, which
 //     class weights or an operating threshold can trade back.
 //
-// what names the rows in the messages, e.g. "holdout".
-func Warnings(r *Report, what string) []string {
+// what names the rows in the messages, e.g. "holdout". tilted says the
+// model's decisions lean away from the most probable class on purpose
+// (class weights, or an operating threshold chosen for recall): accuracy
+// below the majority share is then the expected price and is not warned
+// about.
+func Warnings(r *Report, what string, tilted bool) []string {
 	var out []string
-	if !r.Multilabel && r.Rows > 0 {
+	if !r.Multilabel && r.Rows > 0 && !tilted {
 		major, share := "", 0.0
 		for _, c := range r.PerClass {
 			if s := float64(c.Rows) / float64(r.Rows); s > share {

@@ -65,5 +65,5 @@ func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Resu
 	if err != nil {
 		return out
 	}
-	return append(out, score.Warnings(rep, "holdout")...)
+	return append(out, score.Warnings(rep, "holdout", m.Summary.ClassWeights != nil || m.Decision.Thresholds != nil)...)
 }

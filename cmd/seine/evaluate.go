@@ -121,7 +121,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return prefixLines(*dataPath, err)
 	}
-	rep.Warnings = score.Warnings(rep, baseName(*dataPath))
+	rep.Warnings = score.Warnings(rep, baseName(*dataPath), tilted(m))
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(e.stderr, "seine evaluate: warning: %s\n", w)
 	}
@@ -270,4 +270,10 @@ func pad(s string, width int) string {
 		return s + strings.Repeat(" ", width-n)
 	}
 	return s
+}
+
+// tilted reports whether m's decisions lean away from the most probable
+// class on purpose: class weights in its cost or operating thresholds.
+func tilted(m *nn.Model) bool {
+	return m.Summary.ClassWeights != nil || m.Decision.Thresholds != nil
 }

@@ -12,6 +12,7 @@ import (
 
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/onnx"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -147,6 +148,11 @@ func writeModelSummary(w io.Writer, m *nn.Model) {
 	fmt.Fprintf(w, "  stopped         %s\n", safe(stopReason(sm.Status)))
 	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)
 	writeEncoder(w, m.Encoder())
+	if err := onnx.Check(m); err != nil {
+		fmt.Fprintf(w, "  ONNX export     not possible: %v\n", err)
+	} else {
+		fmt.Fprintf(w, "  ONNX export     possible (seine export; opset %d, IR version %d)\n", onnx.DefaultOpset, onnx.IRVersion)
+	}
 	fmt.Fprintf(w, "  training rows   %d: cost %s, accuracy %s\n", sm.TrainRows, numText(sm.Cost, 1, "%.6g"), numText(sm.TrainAccuracy, 100, "%.2f%%"))
 	if sm.HoldoutRows > 0 {
 		fmt.Fprintf(w, "  holdout rows    %d: cross-entropy %s, accuracy %s\n", sm.HoldoutRows, numText(sm.HoldoutCost, 1, "%.6g"), numText(sm.HoldoutAccuracy, 100, "%.2f%%"))

@@ -6,10 +6,11 @@
 //	seine <command> [flags]
 //	seine help [command]
 //
-// The commands are train, evaluate, predict, gradient-check, inspect,
-// compare, sweep and curve; `seine help COMMAND` describes each. Exit status
-// is 0 on success, 1 when the work fails (bad data, bad spec, divergence)
-// and 2 on bad usage. Messages go to standard error and name the file, the
+// The commands are train, evaluate, predict, report, export,
+// gradient-check, inspect, compare, sweep and curve; `seine help COMMAND`
+// describes each. Exit status is 0 on success, 1 when the work fails (bad
+// data, bad spec, divergence), 2 on bad usage, and 130 or 143 when stopped
+// by SIGINT or SIGTERM. Messages go to standard error and name the file, the
 // line or row, and the field.
 package main
 

@@ -100,7 +100,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return prefixLines(*dataPath, err)
 	}
-	rep.Warnings = score.Warnings(rep, baseName(*dataPath))
+	rep.Warnings = score.Warnings(rep, baseName(*dataPath), tilted(m))
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(e.stderr, "seine report: warning: %s\n", w)
 	}

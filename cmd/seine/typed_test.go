@@ -86,7 +86,7 @@ func TestPredictKeep(t *testing.T) {
 
 	r = seine(t, "inspect", "-model", model)
 	require.Equal(t, 0, r.code, r.stderr)
-	for _, w := range []string{"9 raw inputs → 9 input units", "bare_nuclei", "missing: median = "} {
+	for _, w := range []string{"9 raw inputs → 9 input units", "bare_nuclei", "missing: median = ", "ONNX export     possible"} {
 		assert.Contains(t, r.stdout, w)
 	}
 
