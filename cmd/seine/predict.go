@@ -96,7 +96,9 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err := checkFinite(p, set, *dataPath); err != nil {
 		return err
 	}
-	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, thresholds, *digits) }
+	write := func(w io.Writer) error {
+		return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, thresholds, *digits)
+	}
 	if *out == "" {
 		bw := bufio.NewWriter(e.stdout)
 		if err := write(bw); err != nil {
