@@ -1,0 +1,57 @@
+package gemm
+
+// kernelFunc computes the mr×nr micro-tile T = Σ_{p<kc} a_p·b_pᵀ, where
+// a_p = a[p·mr : (p+1)·mr] is column p of a packed micro-panel of op(A)
+// and b_p = b[p·nr : (p+1)·nr] row p of a packed micro-panel of op(B),
+// each element summed in order of p starting from 0. It then adds T to the
+// mr×nr block of C at c (row stride ldc) when add is true, or stores it
+// there when add is false. A kernel for another architecture is one file
+// that defines kernelAsm and haveAsm for it (see kernel_amd64.go).
+type kernelFunc func(kc int, a, b, c []float64, ldc int, add bool)
+
+// kernelGo is the portable kernel: the 4×12 tile in six 2×4 blocks, so
+// that the eight sums, two values of a and four of b fit in registers.
+func kernelGo(kc int, a, b, c []float64, ldc int, add bool) {
+	a = a[:kc*mr]
+	b = b[:kc*nr]
+	_ = c[(mr-1)*ldc+nr-1]
+	for i := 0; i < mr; i += 2 {
+		for j := 0; j < nr; j += 4 {
+			var s00, s01, s02, s03, s10, s11, s12, s13 float64
+			ap := a[i:]
+			bp := b[j:]
+			for len(ap) >= 2 && len(bp) >= 4 {
+				a0, a1 := ap[0], ap[1]
+				b0, b1, b2, b3 := bp[0], bp[1], bp[2], bp[3]
+				s00 += a0 * b0
+				s01 += a0 * b1
+				s02 += a0 * b2
+				s03 += a0 * b3
+				s10 += a1 * b0
+				s11 += a1 * b1
+				s12 += a1 * b2
+				s13 += a1 * b3
+				if len(ap) < mr || len(bp) < nr {
+					break
+				}
+				ap = ap[mr:]
+				bp = bp[nr:]
+			}
+			r0 := c[i*ldc+j : i*ldc+j+4 : i*ldc+j+4]
+			r1 := c[(i+1)*ldc+j : (i+1)*ldc+j+4 : (i+1)*ldc+j+4]
+			if add {
+				r0[0] += s00
+				r0[1] += s01
+				r0[2] += s02
+				r0[3] += s03
+				r1[0] += s10
+				r1[1] += s11
+				r1[2] += s12
+				r1[3] += s13
+			} else {
+				r0[0], r0[1], r0[2], r0[3] = s00, s01, s02, s03
+				r1[0], r1[1], r1[2], r1[3] = s10, s11, s12, s13
+			}
+		}
+	}
+}
