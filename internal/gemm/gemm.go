@@ -1,6 +1,7 @@
 package gemm
 
 import (
+	"math"
 	"sync/atomic"
 
 	"gonum.org/v1/gonum/blas"
@@ -90,15 +91,16 @@ func Mul(buf []float64, tA, tB blas.Transpose, alpha float64, a, b blas64.Genera
 		scale(beta, c)
 		return
 	}
+	useAsm := haveAsm && !portable.Load()
 	if m < smallRows {
-		small(tA != blas.NoTrans, tB != blas.NoTrans, alpha, a, b, beta, c, k)
+		small(useAsm, tA != blas.NoTrans, tB != blas.NoTrans, alpha, a, b, beta, c, k)
 		return
 	}
 	if len(buf) < BufLen(m, n, k) {
 		panic("gemm: buffer too short")
 	}
 	kern := kernelGo
-	if haveAsm && !portable.Load() {
+	if useAsm {
 		kern = kernelAsm
 	}
 	if beta != 0 && beta != 1 {
@@ -268,9 +270,16 @@ func scale(beta float64, c blas64.General) {
 }
 
 // small computes C = alpha·op(A)·op(B) + beta·C without packing, for C with
-// fewer than smallRows rows: each element is one dot product summed in
-// order of p, with alpha applied to the sum.
-func small(tA, tB bool, alpha float64, a, b blas64.General, beta float64, c blas64.General, k int) {
+// fewer than smallRows rows, in the same order and with the same roundings
+// as the packed path with the kernel in use (fused multiply-adds when fma),
+// so that a row of C has the same bits whether it is computed alone or
+// with others: per block of kb terms, t = Σ_p (alpha·a_ip)·b_pj summed in
+// order of p from 0, then added to C (stored for the first block when
+// beta = 0). Four columns of C at a time keep four independent sums.
+func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c blas64.General, k int) {
+	if beta != 0 && beta != 1 {
+		scale(beta, c)
+	}
 	// op(A)[i][p] = a.Data[i*ai + p*ap]; op(B)[p][j] = b.Data[p*bp + j*bj].
 	ai, ap := a.Stride, 1
 	if tA {
@@ -280,25 +289,63 @@ func small(tA, tB bool, alpha float64, a, b blas64.General, beta float64, c blas
 	if tB {
 		bp, bj = 1, b.Stride
 	}
+	n := c.Cols
+	kb := blockLen(k, kc, 1)
 	for i := 0; i < c.Rows; i++ {
-		row := c.Data[i*c.Stride : i*c.Stride+c.Cols]
-		for j := range row {
-			s := 0.0
-			if ap == 1 && bp == 1 {
-				x := a.Data[i*ai:][:k]
-				y := b.Data[j*bj:][:k]
-				for p, v := range x {
-					s += v * y[p]
+		crow := c.Data[i*c.Stride : i*c.Stride+n]
+		for pc := 0; pc < k; pc += kb {
+			kk := min(kb, k-pc)
+			add := pc > 0 || beta != 0
+			j := 0
+			for ; j+4 <= n; j += 4 {
+				var t0, t1, t2, t3 float64
+				for p := pc; p < pc+kk; p++ {
+					x := a.Data[i*ai+p*ap]
+					if alpha != 1 {
+						x *= alpha
+					}
+					o := p*bp + j*bj
+					y := b.Data[o : o+3*bj+1]
+					if fma {
+						t0 = math.FMA(x, y[0], t0)
+						t1 = math.FMA(x, y[bj], t1)
+						t2 = math.FMA(x, y[2*bj], t2)
+						t3 = math.FMA(x, y[3*bj], t3)
+					} else {
+						t0 += float64(x * y[0])
+						t1 += float64(x * y[bj])
+						t2 += float64(x * y[2*bj])
+						t3 += float64(x * y[3*bj])
+					}
 				}
-			} else {
-				for p := 0; p < k; p++ {
-					s += a.Data[i*ai+p*ap] * b.Data[p*bp+j*bj]
+				d := crow[j : j+4 : j+4]
+				if add {
+					d[0] += t0
+					d[1] += t1
+					d[2] += t2
+					d[3] += t3
+				} else {
+					d[0], d[1], d[2], d[3] = t0, t1, t2, t3
 				}
 			}
-			if beta == 0 {
-				row[j] = alpha * s
-			} else {
-				row[j] = alpha*s + beta*row[j]
+			for ; j < n; j++ {
+				t := 0.0
+				for p := pc; p < pc+kk; p++ {
+					x := a.Data[i*ai+p*ap]
+					if alpha != 1 {
+						x *= alpha
+					}
+					if fma {
+						t = math.FMA(x, b.Data[p*bp+j*bj], t)
+					} else {
+						t += float64(x * b.Data[p*bp+j*bj])
+					}
+				}
+				if add {
+					crow[j] += t
+				} else {
+					crow[j] = t
+				}
 			}
 		}
 	}

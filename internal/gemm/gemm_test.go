@@ -311,3 +311,40 @@ func pad(g blas64.General, p int) blas64.General {
 	}
 	return blas64.General{Rows: g.Rows, Cols: g.Cols, Stride: s, Data: d}
 }
+
+// TestRowsAlone: a row of C has the same bits whether Mul computes it
+// alone (m = 1, the unpacked path) or among others (the packed path), with
+// either kernel, so a model predicts a row alike singly or in a batch.
+func TestRowsAlone(t *testing.T) {
+	kernels(t, func(t *testing.T) {
+		rng := rand.New(rand.NewPCG(7, 7))
+		for _, s := range [][3]int{{9, 70, 4}, {13, 5, 300}, {40, 25, 600}, {5, 3, 17}} {
+			for _, tA := range transposes {
+				for _, tB := range transposes {
+					for _, beta := range []float64{0, 1, 0.5} {
+						m, n, k := s[0], s[1], s[2]
+						a, b := operands(rng, tA, tB, m, n, k, 0)
+						c := randGeneral(rng, m, n, 0)
+						all := clone(c)
+						Mul(make([]float64, BufLen(m, n, k)), tA, tB, -1.5, a, b, beta, all)
+						for i := 0; i < m; i++ {
+							var ai blas64.General
+							if tA == blas.NoTrans {
+								ai = blas64.General{Rows: 1, Cols: k, Stride: k, Data: a.Data[i*k : (i+1)*k]}
+							} else {
+								ai = blas64.General{Rows: k, Cols: 1, Stride: a.Stride, Data: a.Data[i:]}
+							}
+							ci := blas64.General{Rows: 1, Cols: n, Stride: n, Data: append([]float64(nil), c.Data[i*n:(i+1)*n]...)}
+							Mul(nil, tA, tB, -1.5, ai, b, beta, ci)
+							for j := 0; j < n; j++ {
+								if g, w := ci.Data[j], all.Data[i*n+j]; math.Float64bits(g) != math.Float64bits(w) {
+									t.Fatalf("%c%c %v beta=%g: C[%d][%d] alone %.17g, among %d rows %.17g", tA, tB, s, beta, i, j, g, m, w)
+								}
+							}
+						}
+					}
+				}
+			}
+		}
+	})
+}

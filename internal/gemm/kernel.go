@@ -11,6 +11,10 @@ type kernelFunc func(kc int, a, b, c []float64, ldc int, add bool)
 
 // kernelGo is the portable kernel: the 4×12 tile in six 2×4 blocks, so
 // that the eight sums, two values of a and four of b fit in registers.
+// The conversions float64(a·b) forbid the compiler to fuse the multiply
+// and the add (it may on arm64 and others; the Go specification,
+// "Arithmetic operators"), so the portable kernel rounds alike everywhere
+// and agrees with the unpacked path for few rows (small).
 func kernelGo(kc int, a, b, c []float64, ldc int, add bool) {
 	a = a[:kc*mr]
 	b = b[:kc*nr]
@@ -23,14 +27,14 @@ func kernelGo(kc int, a, b, c []float64, ldc int, add bool) {
 			for len(ap) >= 2 && len(bp) >= 4 {
 				a0, a1 := ap[0], ap[1]
 				b0, b1, b2, b3 := bp[0], bp[1], bp[2], bp[3]
-				s00 += a0 * b0
-				s01 += a0 * b1
-				s02 += a0 * b2
-				s03 += a0 * b3
-				s10 += a1 * b0
-				s11 += a1 * b1
-				s12 += a1 * b2
-				s13 += a1 * b3
+				s00 += float64(a0 * b0)
+				s01 += float64(a0 * b1)
+				s02 += float64(a0 * b2)
+				s03 += float64(a0 * b3)
+				s10 += float64(a1 * b0)
+				s11 += float64(a1 * b1)
+				s12 += float64(a1 * b2)
+				s13 += float64(a1 * b3)
 				if len(ap) < mr || len(bp) < nr {
 					break
 				}
