@@ -39,3 +39,25 @@ func BenchmarkMul(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkKernel times the micro-kernel alone on one packed pair of
+// panels (kc = 256) that stays in L1: the rate the blocking can at best
+// approach.
+func BenchmarkKernel(b *testing.B) {
+	for _, port := range []bool{false, true} {
+		b.Run(fmt.Sprintf("portable=%v", port), func(b *testing.B) {
+			kern := kernelAsm
+			if port || !haveAsm {
+				kern = kernelGo
+			}
+			rng := rand.New(rand.NewPCG(1, 1))
+			a := randGeneral(rng, 1, kc*mr, 0).Data
+			p := randGeneral(rng, 1, kc*nr, 0).Data
+			c := make([]float64, mr*nr)
+			for b.Loop() {
+				kern(kc, a, p, c, nr, true)
+			}
+			b.ReportMetric(2*float64(mr*nr*kc)*float64(b.N)/b.Elapsed().Seconds()/1e9, "GFLOP/s")
+		})
+	}
+}

@@ -99,9 +99,9 @@ func Mul(buf []float64, tA, tB blas.Transpose, alpha float64, a, b blas64.Genera
 	if len(buf) < BufLen(m, n, k) {
 		panic("gemm: buffer too short")
 	}
-	kern := kernelGo
+	kern, transpose := kernelGo, transposeGo
 	if useAsm {
-		kern = kernelAsm
+		kern, transpose = kernelAsm, transposeAsm
 	}
 	if beta != 0 && beta != 1 {
 		scale(beta, c)
@@ -115,11 +115,11 @@ func Mul(buf []float64, tA, tB blas.Transpose, alpha float64, a, b blas64.Genera
 		nn := min(nc, n-jc)
 		for pc := 0; pc < k; pc += kb {
 			kk := min(kb, k-pc)
-			packB(bufB, tB != blas.NoTrans, b, pc, jc, kk, nn)
+			packB(transpose, bufB, tB != blas.NoTrans, b, pc, jc, kk, nn)
 			add := pc > 0 || beta != 0
 			for ic := 0; ic < m; ic += mc {
 				mm := min(mc, m-ic)
-				packA(bufA, tA != blas.NoTrans, alpha, a, ic, pc, mm, kk)
+				packA(transpose, bufA, tA != blas.NoTrans, alpha, a, ic, pc, mm, kk)
 				macro(kern, tile, bufA, bufB, mm, nn, kk, c, ic, jc, add)
 			}
 		}
@@ -161,7 +161,7 @@ func macro(kern kernelFunc, tile, ap, bp []float64, mm, nn, kk int, c blas64.Gen
 // packA copies alpha·op(A)[ic:ic+mm, pc:pc+kk] into dst as ⌈mm/mr⌉
 // micro-panels of mr rows, each stored column after column (mr values per
 // p, zero beyond row mm).
-func packA(dst []float64, trans bool, alpha float64, a blas64.General, ic, pc, mm, kk int) {
+func packA(transpose transposeFunc, dst []float64, trans bool, alpha float64, a blas64.General, ic, pc, mm, kk int) {
 	lda := a.Stride
 	for ir := 0; ir < mm; ir += mr {
 		mw := min(mr, mm-ir)
@@ -183,14 +183,7 @@ func packA(dst []float64, trans bool, alpha float64, a blas64.General, ic, pc, m
 			}
 		} else {
 			if mw == mr {
-				r0 := a.Data[(ic+ir)*lda+pc:][:kk]
-				r1 := a.Data[(ic+ir+1)*lda+pc:][:kk]
-				r2 := a.Data[(ic+ir+2)*lda+pc:][:kk]
-				r3 := a.Data[(ic+ir+3)*lda+pc:][:kk]
-				for p := range r0 {
-					d := pan[p*mr : p*mr+mr : p*mr+mr]
-					d[0], d[1], d[2], d[3] = r0[p], r1[p], r2[p], r3[p]
-				}
+				transpose(pan, a.Data[(ic+ir)*lda+pc:], lda, kk, mr)
 			} else {
 				for i := range pan {
 					pan[i] = 0
@@ -214,7 +207,7 @@ func packA(dst []float64, trans bool, alpha float64, a blas64.General, ic, pc, m
 // packB copies op(B)[pc:pc+kk, jc:jc+nn] into dst as ⌈nn/nr⌉ micro-panels
 // of nr columns, each stored row after row (nr values per p, zero beyond
 // column nn).
-func packB(dst []float64, trans bool, b blas64.General, pc, jc, kk, nn int) {
+func packB(transpose transposeFunc, dst []float64, trans bool, b blas64.General, pc, jc, kk, nn int) {
 	ldb := b.Stride
 	for jr := 0; jr < nn; jr += nr {
 		nw := min(nr, nn-jr)
@@ -236,10 +229,14 @@ func packB(dst []float64, trans bool, b blas64.General, pc, jc, kk, nn int) {
 			continue
 		}
 		// op(B)[p][j] = b[j][p]: column j of the panel is row jc+jr+j of b.
-		if nw < nr {
-			for i := range pan {
-				pan[i] = 0
+		if nw == nr {
+			for j := 0; j < nr; j += 4 {
+				transpose(pan[j:], b.Data[(jc+jr+j)*ldb+pc:], ldb, kk, nr)
 			}
+			continue
+		}
+		for i := range pan {
+			pan[i] = 0
 		}
 		for j := 0; j < nw; j++ {
 			r := b.Data[(jc+jr+j)*ldb+pc:][:kk]

@@ -9,6 +9,10 @@ package gemm
 // that defines kernelAsm and haveAsm for it (see kernel_amd64.go).
 type kernelFunc func(kc int, a, b, c []float64, ldc int, add bool)
 
+// transposeFunc sets dst[p·ldd + i] = src[i·lds + p] for i < 4, p < kk;
+// the packing routines use it to turn four rows into columns.
+type transposeFunc func(dst, src []float64, lds, kk, ldd int)
+
 // kernelGo is the portable kernel: the 4×12 tile in six 2×4 blocks, so
 // that the eight sums, two values of a and four of b fit in registers.
 // The conversions float64(a·b) forbid the compiler to fuse the multiply
@@ -57,5 +61,22 @@ func kernelGo(kc int, a, b, c []float64, ldc int, add bool) {
 				r1[0], r1[1], r1[2], r1[3] = s10, s11, s12, s13
 			}
 		}
+	}
+}
+
+// transposeGo sets dst[p·ldd + i] = src[i·lds + p] for i < 4, p < kk:
+// four rows of src become kk groups of four values, ldd apart.
+func transposeGo(dst, src []float64, lds, kk, ldd int) {
+	if kk == 0 {
+		return
+	}
+	r0 := src[:kk:kk]
+	r1 := src[lds : lds+kk : lds+kk]
+	r2 := src[2*lds : 2*lds+kk : 2*lds+kk]
+	r3 := src[3*lds : 3*lds+kk : 3*lds+kk]
+	_ = dst[(kk-1)*ldd+3]
+	for p, v := range r0 {
+		d := dst[p*ldd : p*ldd+4 : p*ldd+4]
+		d[0], d[1], d[2], d[3] = v, r1[p], r2[p], r3[p]
 	}
 }

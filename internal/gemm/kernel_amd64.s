@@ -109,3 +109,53 @@ store:
 	VMOVUPD Y15, 64(R11)
 	VZEROUPPER
 	RET
+
+// func transpose4(dst, src *float64, lds, kk, ldd int)
+//
+// For p = 0 … kk−1 (kk a multiple of 4), dst[p·ldd + i] = src[i·lds + p]
+// for i = 0 … 3: four rows of src become kk groups of four, ldd apart.
+// Each 4×4 block goes through registers: unpack pairs of rows, then swap
+// 128-bit halves.
+TEXT ·transpose4(SB), NOSPLIT, $0-40
+	MOVQ dst+0(FP), DI
+	MOVQ src+8(FP), SI
+	MOVQ lds+16(FP), R8
+	SHLQ $3, R8
+	MOVQ kk+24(FP), CX
+	MOVQ ldd+32(FP), R9
+	SHLQ $3, R9
+	LEAQ (SI)(R8*1), R10
+	LEAQ (SI)(R8*2), R11
+	LEAQ (R11)(R8*1), R12
+	LEAQ (R9)(R9*2), R13
+	SHRQ $2, CX
+	JEQ  tdone
+
+tloop:
+	VMOVUPD    (SI), Y0
+	VMOVUPD    (R10), Y1
+	VMOVUPD    (R11), Y2
+	VMOVUPD    (R12), Y3
+	VUNPCKLPD  Y1, Y0, Y4
+	VUNPCKHPD  Y1, Y0, Y5
+	VUNPCKLPD  Y3, Y2, Y6
+	VUNPCKHPD  Y3, Y2, Y7
+	VPERM2F128 $0x20, Y6, Y4, Y0
+	VPERM2F128 $0x20, Y7, Y5, Y1
+	VPERM2F128 $0x31, Y6, Y4, Y2
+	VPERM2F128 $0x31, Y7, Y5, Y3
+	VMOVUPD    Y0, (DI)
+	VMOVUPD    Y1, (DI)(R9*1)
+	VMOVUPD    Y2, (DI)(R9*2)
+	VMOVUPD    Y3, (DI)(R13*1)
+	ADDQ       $32, SI
+	ADDQ       $32, R10
+	ADDQ       $32, R11
+	ADDQ       $32, R12
+	LEAQ       (DI)(R9*4), DI
+	DECQ       CX
+	JNE        tloop
+
+tdone:
+	VZEROUPPER
+	RET

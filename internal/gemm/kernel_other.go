@@ -7,3 +7,5 @@ package gemm
 const haveAsm = false
 
 var kernelAsm = kernelGo
+
+var transposeAsm = transposeGo
