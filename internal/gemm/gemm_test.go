@@ -102,19 +102,25 @@ func naive(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float
 // floating point, each with an error of at most γ_{k+1}·Σ|terms|, γ_j =
 // j·u/(1−j·u) ≈ j·2⁻⁵³ (Higham 2002, "Accuracy and Stability of Numerical
 // Algorithms", §3.1), so they may differ by twice that; the bound used is
-// (k+2)·2⁻⁵² · Σ|terms| plus one rounding of alpha and beta.
+// (k+4)·2⁻⁵² · Σ|terms|, which also covers the rounding of alpha and beta.
 func checkNaive(t *testing.T, tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General, k int) {
 	t.Helper()
 	ref, mag := naive(tA, tB, alpha, a, b, beta, c, k)
-	got := clone(c)
-	Mul(make([]float64, BufLen(c.Rows, c.Cols, k)), tA, tB, alpha, a, b, beta, got)
+	compareNaive(t, tA, tB, alpha, a, b, beta, c, k, ref, mag, make([]float64, BufLen(c.Rows, c.Cols, k)), clone(c))
+}
+
+// compareNaive runs Mul into got (a copy of c, with scratch buf) and
+// compares it with ref as checkNaive says; padding must not change.
+func compareNaive(t *testing.T, tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General, k int, ref, mag, buf []float64, got blas64.General) {
+	t.Helper()
+	Mul(buf, tA, tB, alpha, a, b, beta, got)
 	tol := float64(k+4) * 0x1p-52
 	for i := 0; i < c.Rows; i++ {
 		for j := 0; j < c.Cols; j++ {
 			g, r := got.Data[i*got.Stride+j], ref[i*c.Cols+j]
 			if d := math.Abs(g - r); !(d <= tol*mag[i*c.Cols+j]) {
-				t.Fatalf("%c%c m=%d n=%d k=%d alpha=%g beta=%g: C[%d][%d] = %.17g, naive %.17g",
-					tA, tB, c.Rows, c.Cols, k, alpha, beta, i, j, g, r)
+				t.Fatalf("%c%c m=%d n=%d k=%d alpha=%g beta=%g asm=%v: C[%d][%d] = %.17g, naive %.17g",
+					tA, tB, c.Rows, c.Cols, k, alpha, beta, Accelerated(), i, j, g, r)
 			}
 		}
 		for j := c.Cols; j < c.Stride && i*c.Stride+j < len(c.Data); j++ {
@@ -127,28 +133,43 @@ func checkNaive(t *testing.T, tA, tB blas.Transpose, alpha float64, a, b blas64.
 
 // TestNaiveSmall: every shape with m, n, k in 1…17, both transposes of
 // both operands, beta 0 and 1 (and C full of NaN for beta = 0, which BLAS
-// says is not read), against the triple loop.
+// says is not read), against the triple loop, with every kernel.
 func TestNaiveSmall(t *testing.T) {
-	kernels(t, func(t *testing.T) {
-		rng := rand.New(rand.NewPCG(1, 1))
-		for _, tA := range transposes {
-			for _, tB := range transposes {
-				for m := 1; m <= 17; m++ {
-					for n := 1; n <= 17; n++ {
-						for k := 1; k <= 17; k++ {
-							a, b := operands(rng, tA, tB, m, n, k, 0)
-							c := randGeneral(rng, m, n, 0)
-							checkNaive(t, tA, tB, 1, a, b, 1, c, k)
-							for i := range c.Data {
-								c.Data[i] = math.NaN()
+	prev := UsePortable(true)
+	defer UsePortable(prev)
+	asm := []bool{false}
+	if UsePortable(false); Accelerated() {
+		asm = append(asm, true)
+	}
+	rng := rand.New(rand.NewPCG(1, 1))
+	buf := make([]float64, BufLen(17, 17, 17))
+	got := randGeneral(rng, 17, 17, 0)
+	for _, tA := range transposes {
+		for _, tB := range transposes {
+			for m := 1; m <= 17; m++ {
+				for n := 1; n <= 17; n++ {
+					for k := 1; k <= 17; k++ {
+						a, b := operands(rng, tA, tB, m, n, k, 0)
+						c := randGeneral(rng, m, n, 0)
+						g := blas64.General{Rows: m, Cols: n, Stride: n, Data: got.Data[:m*n]}
+						for _, beta := range []float64{1, 0} {
+							if beta == 0 {
+								for i := range c.Data {
+									c.Data[i] = math.NaN()
+								}
 							}
-							checkNaive(t, tA, tB, 1, a, b, 0, c, k)
+							ref, mag := naive(tA, tB, 1, a, b, beta, c, k)
+							for _, on := range asm {
+								UsePortable(!on)
+								copy(g.Data, c.Data)
+								compareNaive(t, tA, tB, 1, a, b, beta, c, k, ref, mag, buf, g)
+							}
 						}
 					}
 				}
 			}
 		}
-	})
+	}
 }
 
 // largeShapes are the products nn issues on 256-row chunks of the
@@ -157,27 +178,36 @@ func TestNaiveSmall(t *testing.T) {
 var largeShapes = [][3]int{ // m, n, k
 	{256, 256, 400}, {256, 400, 256}, {256, 10, 256}, {10, 256, 256}, {256, 256, 10},
 	{256, 64, 64}, {64, 64, 256}, {256, 10, 64}, {10, 64, 256}, {256, 64, 10},
-	{301, 517, 613}, {97, 481, 257}, {5, 1000, 3}, {1000, 5, 7},
+	{101, 493, 300}, {97, 481, 257}, {5, 1000, 3}, {1000, 5, 7},
 }
 
 // TestNaiveLarge: the large shapes, with padded strides and alpha, beta
-// other than 0 and 1, against the triple loop.
+// other than 0 and 1, against the triple loop, with every kernel.
 func TestNaiveLarge(t *testing.T) {
-	kernels(t, func(t *testing.T) {
-		rng := rand.New(rand.NewPCG(2, 2))
-		for _, s := range largeShapes {
-			for _, tA := range transposes {
-				for _, tB := range transposes {
-					m, n, k := s[0], s[1], s[2]
-					a, b := operands(rng, tA, tB, m, n, k, 3)
-					c := randGeneral(rng, m, n, 5)
-					checkNaive(t, tA, tB, 1, a, b, 0, c, k)
-					checkNaive(t, tA, tB, 1, a, b, 1, c, k)
-					checkNaive(t, tA, tB, -0.75, a, b, 0.5, c, k)
+	prev := UsePortable(true)
+	defer UsePortable(prev)
+	asm := []bool{false}
+	if UsePortable(false); Accelerated() {
+		asm = append(asm, true)
+	}
+	rng := rand.New(rand.NewPCG(2, 2))
+	for _, s := range largeShapes {
+		for _, tA := range transposes {
+			for _, tB := range transposes {
+				m, n, k := s[0], s[1], s[2]
+				a, b := operands(rng, tA, tB, m, n, k, 3)
+				c := randGeneral(rng, m, n, 5)
+				buf := make([]float64, BufLen(m, n, k))
+				for _, ab := range [][2]float64{{1, 0}, {1, 1}, {-0.75, 0.5}} {
+					ref, mag := naive(tA, tB, ab[0], a, b, ab[1], c, k)
+					for _, on := range asm {
+						UsePortable(!on)
+						compareNaive(t, tA, tB, ab[0], a, b, ab[1], c, k, ref, mag, buf, clone(c))
+					}
 				}
 			}
 		}
-	})
+	}
 }
 
 // TestAgainstGonum: against gonum's pure-Go Dgemm (gonum v0.17.0
