@@ -294,6 +294,31 @@ func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c
 			kk := min(kb, k-pc)
 			add := pc > 0 || beta != 0
 			j := 0
+			if ap == 1 && bp == 1 && alpha == 1 {
+				// The forward product of one row, Z = x·Wᵀ: op(A)'s row
+				// and op(B)'s columns (rows of B) are contiguous.
+				x := a.Data[i*ai+pc : i*ai+pc+kk]
+				for ; j+4 <= n; j += 4 {
+					t0, t1, t2, t3 := dot4(fma, x, b.Data[j*bj+pc:], bj)
+					d := crow[j : j+4 : j+4]
+					if add {
+						d[0] += t0
+						d[1] += t1
+						d[2] += t2
+						d[3] += t3
+					} else {
+						d[0], d[1], d[2], d[3] = t0, t1, t2, t3
+					}
+				}
+				for ; j < n; j++ {
+					t := dot1(fma, x, b.Data[j*bj+pc:])
+					if add {
+						crow[j] += t
+					} else {
+						crow[j] = t
+					}
+				}
+			}
 			for ; j+4 <= n; j += 4 {
 				var t0, t1, t2, t3 float64
 				for p := pc; p < pc+kk; p++ {
@@ -346,4 +371,46 @@ func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c
 			}
 		}
 	}
+}
+
+// dot4 returns the four sums Σ_p x_p·y[r·ld + p], r = 0…3, each from 0 in
+// order of p, with fused multiply-adds when fma (as the assembly kernel)
+// or with a rounded product (as the portable kernel).
+func dot4(fma bool, x, y []float64, ld int) (t0, t1, t2, t3 float64) {
+	n := len(x)
+	y0 := y[:n:n]
+	y1 := y[ld : ld+n : ld+n]
+	y2 := y[2*ld : 2*ld+n : 2*ld+n]
+	y3 := y[3*ld : 3*ld+n : 3*ld+n]
+	if fma {
+		for p, v := range x {
+			t0 = math.FMA(v, y0[p], t0)
+			t1 = math.FMA(v, y1[p], t1)
+			t2 = math.FMA(v, y2[p], t2)
+			t3 = math.FMA(v, y3[p], t3)
+		}
+		return
+	}
+	for p, v := range x {
+		t0 += float64(v * y0[p])
+		t1 += float64(v * y1[p])
+		t2 += float64(v * y2[p])
+		t3 += float64(v * y3[p])
+	}
+	return
+}
+
+// dot1 is dot4 for one sum.
+func dot1(fma bool, x, y []float64) (t float64) {
+	y = y[:len(x):len(x)]
+	if fma {
+		for p, v := range x {
+			t = math.FMA(v, y[p], t)
+		}
+		return
+	}
+	for p, v := range x {
+		t += float64(v * y[p])
+	}
+	return
 }
