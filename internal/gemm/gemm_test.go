@@ -35,7 +35,7 @@ func randGeneral(rng *rand.Rand, r, c, pad int) blas64.General {
 	s := c + pad
 	d := make([]float64, max(r*s, 1))
 	for i := range d {
-		if i%s >= c {
+		if s == 0 || i%s >= c {
 			d[i] = math.NaN()
 			continue
 		}
