@@ -43,7 +43,7 @@
 //     packs op(B) once per kc block.
 //
 // On the 256-row chunk products of the benchmarks' 400→256→10 net the AVX2
-// kernel reaches about 90% of its own rate on panels in L1 (see
+// kernel reaches about 85% of its own rate on panels in L1 (see
 // BenchmarkKernel and BenchmarkMul, and benchmarks/README.md).
 //
 // # Kernels and dispatch
