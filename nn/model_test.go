@@ -199,7 +199,7 @@ func TestReadModelRejects(t *testing.T) {
 	input := func(doc map[string]any, i int) map[string]any {
 		return doc["encoder"].(map[string]any)["inputs"].([]any)[i].(map[string]any)
 	}
-	flipped := []byte(good.String())
+	flipped := bytes.Clone(good.Bytes())
 	i := bytes.Index(flipped, []byte(`"data": "`)) + 12
 	flipped[i] ^= 0x01
 	tests := []struct {

@@ -12,7 +12,6 @@ import (
 
 // Element types of the tensors the graph uses (TensorProto.DataType).
 var (
-	tFloat  = int32(pb.TensorProto_FLOAT)
 	tDouble = int32(pb.TensorProto_DOUBLE)
 	tInt64  = int32(pb.TensorProto_INT64)
 	tString = int32(pb.TensorProto_STRING)
