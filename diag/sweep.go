@@ -94,8 +94,8 @@ type Sweep struct {
 	// first on ties).
 	Best int
 	// Folds is the number of fits per value: k, or 1 with a holdout.
-	Folds    int
-	Holdout  float64 // the holdout fraction, or 0 with folds
+	Folds   int
+	Holdout float64 // the holdout fraction, or 0 with folds
 	// Warnings are those of the fits (each text once, in the order of the
 	// fits).
 	Warnings []string
