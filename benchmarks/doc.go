@@ -9,10 +9,13 @@
 //     over all m rows of three nets (tiny 150×4→8→3, small 1,800×64→64→10,
 //     large 20,000×400→256→10), each with a sigmoid and a softmax output.
 //     After the timed loop it times the GEMM ceiling: the same five
-//     matrix products at full size, with the BLAS in use (see below), and
+//     matrix products at full size, with the build's products (see below), and
 //     reports gemm-GFLOP/s and ratio = eval rate / GEMM rate (cpu-ratio:
 //     the same with process CPU time, steadier on a shared machine).
 //   - BenchmarkGEMM: the ceiling on its own.
+//   - BenchmarkGEMMChunk: the products of one evaluation of a single
+//     256-row chunk on one goroutine, as each worker does them; with
+//     -cpu 1 the single-core rate on nn's own shapes.
 //   - BenchmarkEvalGrid: every combination of workers (1, 2) and chunk
 //     (64 … 1,024 rows) at each size.
 //   - BenchmarkEvalRows: the small net at m = 1,000 … 100,000 rows, for the
@@ -36,9 +39,11 @@
 // over the evaluation's time; the activations, losses and sums the
 // evaluation also does are counted as overhead, not as work.
 //
-// The ceiling multiplies the full m-row matrices with blas64.Gemm, once
-// with each product in one call (the BLAS's own threading) and once split
-// into GOMAXPROCS row blocks on as many goroutines; the faster of the two
-// counts. With the default build blas64 is gonum's pure-Go implementation;
-// with -tags openblas package nn selects OpenBLAS.
+// The ceiling multiplies the full m-row matrices as nn does in the build,
+// once with each product in one call and once split into GOMAXPROCS row
+// blocks on as many goroutines; the faster of the two counts. With the
+// default build that is internal/gemm (its AVX2+FMA kernel where the CPU
+// has one), with -tags purego internal/gemm's portable Go kernel, and with
+// -tags openblas OpenBLAS on one thread (through blas64, which package nn
+// points at gonum's netlib binding). Both run single-threaded per call.
 package benchmarks

@@ -33,7 +33,7 @@ func reportEval(b *testing.B, n *nn.Net, rows int, cpu0 time.Duration) (wall, cp
 // times (steadier on a loaded machine). Run it with -cpu 1,2 for the
 // two-core speed-up.
 func BenchmarkEval(b *testing.B) {
-	b.Logf("BLAS: %T, GOMAXPROCS %d", blasImpl(), runtime.GOMAXPROCS(0))
+	b.Logf("products: %s, GOMAXPROCS %d", backend(), runtime.GOMAXPROCS(0))
 	for _, sz := range sizes {
 		for _, out := range outputs {
 			b.Run(fmt.Sprintf("%v/%v", sz, out), func(b *testing.B) {
@@ -82,6 +82,33 @@ func BenchmarkGEMM(b *testing.B) {
 				b.ReportMetric(gemmFLOPs(w, sz.rows)/per.Seconds()/1e9, "GFLOP/s")
 			})
 		}
+	}
+}
+
+// BenchmarkGEMMChunk times the products of one evaluation of a chunk of
+// nn.DefaultChunk rows, on one goroutine, as each worker of an evaluation
+// does them: the single-core rate of the kernel on nn's own shapes (run
+// it with -cpu 1 for the single-core figure).
+func BenchmarkGEMMChunk(b *testing.B) {
+	b.Logf("products: %s", backend())
+	for _, sz := range sizes {
+		w := []int{sz.inputs, sz.hidden, sz.classes}
+		rows := min(sz.rows, nn.DefaultChunk)
+		b.Run(fmt.Sprintf("%v/chunk=%d", sz, rows), func(b *testing.B) {
+			ps := products(w, rows)
+			for _, p := range ps {
+				p.run()
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for range b.N {
+				for _, p := range ps {
+					p.run()
+				}
+			}
+			per := b.Elapsed() / time.Duration(b.N)
+			b.ReportMetric(gemmFLOPs(w, rows)/per.Seconds()/1e9, "GFLOP/s")
+		})
 	}
 }
 

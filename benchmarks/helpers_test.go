@@ -116,11 +116,23 @@ func gemmFLOPs(w []int, m int) float64 {
 	return 2 * float64(m) * f
 }
 
-// product is one call C = op(A)·op(B).
+// product is one call C = op(A)·op(B), with its packing scratch buf
+// (see run and bufLen, per build).
 type product struct {
 	tA, tB blas.Transpose
 	a, b   blas64.General
 	c      blas64.General
+	buf    []float64
+}
+
+// withBuf returns p with scratch of its own.
+func (p product) withBuf() product {
+	k := p.a.Cols
+	if p.tA != blas.NoTrans {
+		k = p.a.Rows
+	}
+	p.buf = make([]float64, bufLen(p.c.Rows, p.c.Cols, k))
+	return p
 }
 
 func general(r, c int, rng *rand.Rand) blas64.General {
@@ -154,18 +166,16 @@ func products(w []int, m int) []product {
 	}
 	var ps []product
 	for l := 0; l < L; l++ {
-		ps = append(ps, product{blas.NoTrans, blas.Trans, a[l], wt[l], a[l+1]})
+		ps = append(ps, product{blas.NoTrans, blas.Trans, a[l], wt[l], a[l+1], nil}.withBuf())
 	}
 	for l := L - 1; l >= 0; l-- {
-		ps = append(ps, product{blas.Trans, blas.NoTrans, d[l+1], a[l], g[l]})
+		ps = append(ps, product{blas.Trans, blas.NoTrans, d[l+1], a[l], g[l], nil}.withBuf())
 		if l >= 1 {
-			ps = append(ps, product{blas.NoTrans, blas.NoTrans, d[l+1], wt[l], d[l]})
+			ps = append(ps, product{blas.NoTrans, blas.NoTrans, d[l+1], wt[l], d[l], nil}.withBuf())
 		}
 	}
 	return ps
 }
-
-func (p product) run() { blas64.Gemm(p.tA, p.tB, 1, p.a, p.b, 0, p.c) }
 
 // split returns p as k products over disjoint blocks of C: blocks of rows
 // when C has at least as many rows as columns, else blocks of columns.
@@ -197,7 +207,7 @@ func (p product) split(k int) []product {
 				q.b = rowBlock(p.b, lo, hi)
 			}
 		}
-		out = append(out, q)
+		out = append(out, q.withBuf())
 	}
 	return out
 }

@@ -238,7 +238,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		if ok {
 			labelCol = j
 		} else if !opt.NoLabel {
-			return nil, &Error{Line: hLine, Column: opt.Label, Err: describe(ErrMissingColumn, "no label column of that name in the header (%s)", nameList(names))}
+			return nil, &Error{Line: hLine, Column: opt.Label, Err: describe(ErrMissingColumn, "no label column of that name in the header (%s)%s", nameList(names), separatorHint(names, opt.Comma))}
 		}
 	case !opt.NoLabel:
 		labelCol = len(names) - 1
@@ -275,7 +275,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			feat = append(feat, j)
 		}
 		if len(missing) > 0 {
-			return nil, &Error{Line: hLine, Column: missing[0], Err: describe(ErrMissingColumn, "feature columns %s not in the header (%s)", nameList(missing), nameList(names))}
+			return nil, &Error{Line: hLine, Column: missing[0], Err: describe(ErrMissingColumn, "feature columns %s not in the header (%s)%s", nameList(missing), nameList(names), separatorHint(names, opt.Comma))}
 		}
 	} else {
 		for j := range names {
@@ -289,7 +289,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		}
 	}
 	if len(feat) == 0 {
-		return nil, &Error{Line: hLine, Err: describe(ErrMissingColumn, "no feature columns; expected at least one besides the label")}
+		return nil, &Error{Line: hLine, Err: describe(ErrMissingColumn, "no feature columns; expected at least one besides the label%s", separatorHint(names, opt.Comma))}
 	}
 	keep := make([]int, len(opt.Keep))
 	var absent []string
@@ -764,3 +764,22 @@ func nameList(names []string) string {
 }
 
 func classList(classes []string) string { return "(" + nameList(classes) + ")" }
+
+// separatorHint names the separator a header seems to use when it was read
+// as one column that holds ';', a tab or another common separator: the
+// usual cause of "column not in the header" on a file from a spreadsheet
+// set to another locale. It returns "" otherwise.
+func separatorHint(names []string, comma rune) string {
+	if len(names) != 1 {
+		return ""
+	}
+	for _, c := range []struct {
+		r    rune
+		name string
+	}{{';', "';'"}, {'\t', "a tab"}, {'|', "'|'"}, {',', "','"}} {
+		if c.r != comma && strings.ContainsRune(names[0], c.r) {
+			return fmt.Sprintf("; the header is one column holding %s: is the file separated by %s? (CSVOptions.Comma; seine: -comma %s)", c.name, c.name, map[rune]string{';': "';'", '\t': "tab", '|': "'|'", ',': "','"}[c.r])
+		}
+	}
+	return ""
+}

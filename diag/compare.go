@@ -24,7 +24,7 @@ var ErrConfig = errors.New("diag: bad configuration")
 // DefaultBatch is the mini-batch size, in rows, that Compare gives momentum
 // and Adam when neither the config nor the spec's train.batch sets one
 // (common practice: small powers of two).
-const DefaultBatch = 32
+const DefaultBatch = train.DefaultBatch
 
 // DefaultTarget is the default of CompareConfig.Target: a run reaches the
 // target when its cost is within 1% of the best cost of its seed.

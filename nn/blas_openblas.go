@@ -9,6 +9,7 @@ void openblas_set_num_threads(int);
 import "C"
 
 import (
+	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/netlib/blas/netlib"
 )
@@ -23,14 +24,15 @@ import (
 // stay bit-identical for any Workers or GOMAXPROCS (they differ from the
 // pure-Go build in the last bits, within 1e-12 relative).
 //
-// gemm hands OpenBLAS each product whole: unlike gonum's Dgemm it neither
-// starts goroutines nor allocates on large products, and it is fastest on
-// the largest block it is given.
-const (
-	tileRows = 1 << 30
-	tileCols = 1 << 30
-	tileK    = 1 << 30
-)
+// product hands OpenBLAS each product whole: it neither starts goroutines
+// (one thread) nor allocates, and it is fastest on the largest block it is
+// given. It packs into its own buffers, so buf is unused.
+func product(buf []float64, tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
+	blas64.Gemm(tA, tB, alpha, a, b, beta, c)
+}
+
+// productBufLen is 0: OpenBLAS needs no scratch from nn.
+func productBufLen(m, n, k int) int { return 0 }
 
 // init selects the BLAS backend; it is the only effect of the build tag.
 func init() {

@@ -14,8 +14,11 @@ import "runtime"
 //	            + m                    the targets of a binary sigmoid output (one unit)
 //	batches     m + b·n_0 + b·n_L      row permutation and the gathered batch rows
 //	workspaces  W·(2P + 3·c·Σ_{l≥1} n_l) per worker: two chunk gradients waiting to be summed, and Z, A, Δ of every layer
+//	            + W·S                  per worker: the scratch in which the matrix products pack their operands
 //	gradient    P                      the sum of the chunk gradients
 //
+// where S, at most 48 + 256·(96 + 480) words, is the most that a product
+// of a chunk needs (internal/gemm.BufLen; 0 under the openblas build tag),
 // plus at most 160 bytes per chunk for the chunk descriptors (two
 // blas64.General of 48 bytes each, and the lists of the batches). It leaves out what the
 // caller holds besides: the data set as read from the file (another m·n_0 +
@@ -65,6 +68,6 @@ func (n *Net) TrainingBytes(rows int, opt ObjectiveOptions) int64 {
 		units += int64(s)
 	}
 	c := min(chunk, m)
-	words += workers*(2*P+3*c*units) + P
+	words += workers*(2*P+3*c*units+int64(packLen(n, int(c), true))) + P
 	return 8*words + 160*chunks
 }

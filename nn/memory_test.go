@@ -39,15 +39,22 @@ func memoryNet(t *testing.T) *Net {
 //
 //	data 10,000·(16+5) = 210,000 words; workspaces 2·(2·533 + 3·256·29)
 //	= 46,676; gradient 533; in all 257,209 words = 2,057,672 bytes, plus
-//	40·160 = 6,400 bytes.
+//	40·160 = 6,400 bytes; plus the packing scratch 2·S, where S is the
+//	largest of the products' (internal/gemm.BufLen): ∂W_1 (24×16 over 256
+//	rows) needs 4·12 + 256·24 + 256·24 = 12,336 words (0 with OpenBLAS).
 func TestTrainingBytesFormula(t *testing.T) {
 	n := memoryNet(t)
-	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2}), int64(2_064_072); got != want {
+	S := packLen(n, 256, true)
+	if productBufLen(24, 16, 256) > 0 && S != 12_336 {
+		t.Errorf("packing scratch %d words, want 12,336", S)
+	}
+	base := int64(2_064_072 + 8*2*S)
+	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2}), base; got != want {
 		t.Errorf("TrainingBytes = %d, want %d", got, want)
 	}
 	// A mini-batch of 100 rows adds the permutation (10,000 words) and the
 	// gathered batch, 100·16 + 100·5 words.
-	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2, Batch: 100}), int64(2_064_072+8*(10_000+1_600+500)); got != want {
+	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2, Batch: 100}), base+8*(10_000+1_600+500); got != want {
 		t.Errorf("with Batch 100: %d, want %d", got, want)
 	}
 }

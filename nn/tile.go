@@ -2,16 +2,25 @@
 
 package nn
 
-// Block sizes of gemm in the pure-Go build. gonum's Dgemm computes a
-// product on one goroutine when C spans fewer than 4 of its 64×64 blocks
-// and otherwise starts goroutines (allocating on every call). gemm hands it
-// blocks of C of at most 64×192, i.e. 3 blocks, so every product runs
-// serially, allocates nothing, and sums over the inner dimension in one
-// fixed order. The inner dimension is not split: on the chunk products of
-// the benchmarks (256 rows, widths 64 to 400) slices of 64 or 128 terms,
-// as gonum uses on large products, were 10–40% slower in CPU time.
-const (
-	tileRows = 64
-	tileCols = 192
-	tileK    = 1 << 30
+import (
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+
+	"github.com/seine-ml/seine/internal/gemm"
 )
+
+// product computes C = alpha·op(A)·op(B) + beta·C with internal/gemm, our
+// own packed GEMM: an AVX2+FMA kernel in Go assembly on amd64 CPUs that
+// have both, a portable Go kernel elsewhere and under the purego build
+// tag. It runs on the calling goroutine, allocates nothing (buf is the
+// worker's packing scratch, of productBufLen elements) and sums in an order
+// fixed by the shapes. The kernels round differently (FMA rounds a·b + s
+// once), so the last bits of results differ between CPUs with and without
+// AVX2+FMA and the purego build, as they differ from the openblas build.
+func product(buf []float64, tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
+	gemm.Mul(buf, tA, tB, alpha, a, b, beta, c)
+}
+
+// productBufLen returns the scratch product needs for C of m×n and inner
+// dimension k.
+func productBufLen(m, n, k int) int { return gemm.BufLen(m, n, k) }

@@ -14,56 +14,27 @@ func sub(g blas64.General, i, j, r, c int) blas64.General {
 	return blas64.General{Rows: r, Cols: c, Stride: g.Stride, Data: g.Data[i*g.Stride+j : (i+r-1)*g.Stride+j+c]}
 }
 
-// gemm computes C = alpha·op(A)·op(B) + beta·C block by block: blocks of
-// at most tileRows × tileCols of C, each summed over the inner dimension in
-// consecutive slices of at most tileK (see tile.go and blas_openblas.go).
-// The blocks depend only on the shapes, so the order of every sum is fixed.
-// The inner dimension k is never 0 here (widths and chunk rows are ≥ 1).
-func gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
-	if c.Rows == 0 || c.Cols == 0 {
-		return
-	}
-	k := a.Cols
-	if tA == blas.Trans {
-		k = a.Rows
-	}
-	for i := 0; i < c.Rows; i += tileRows {
-		ri := min(tileRows, c.Rows-i)
-		for j := 0; j < c.Cols; j += tileCols {
-			cj := min(tileCols, c.Cols-j)
-			cs := sub(c, i, j, ri, cj)
-			bt := beta
-			for l := 0; l < k; l += tileK {
-				kl := min(tileK, k-l)
-				var as, bs blas64.General
-				if tA == blas.Trans {
-					as = sub(a, l, i, kl, ri)
-				} else {
-					as = sub(a, i, l, ri, kl)
-				}
-				if tB == blas.Trans {
-					bs = sub(b, j, l, cj, kl)
-				} else {
-					bs = sub(b, l, j, kl, cj)
-				}
-				blas64.Gemm(tA, tB, alpha, as, bs, bt, cs)
-				bt = 1
-			}
-		}
-	}
+// gemm computes C = alpha·op(A)·op(B) + beta·C with the backend of the
+// build (product, in tile.go or blas_openblas.go), packing into w.pack.
+// The order of every sum depends only on the shapes (see internal/gemm),
+// never on which worker runs the product.
+func (w *work) gemm(tA, tB blas.Transpose, alpha float64, a, b blas64.General, beta float64, c blas64.General) {
+	product(w.pack, tA, tB, alpha, a, b, beta, c)
 }
 
 // work holds the buffers of one forward and backward pass over up to rows
 // rows: for layer l = 1…L, z[l−1] and a[l−1] hold Z_l and A_l and d[l−1]
 // holds Δ_l (all row-major, rows × n_l). grad (NumParams values, set by
 // the owner before a backward eval) receives the summed (not yet averaged)
-// gradient of the rows; loss their summed loss.
+// gradient of the rows; loss their summed loss. pack is the scratch in
+// which gemm packs its operands, long enough for every product of a pass.
 type work struct {
 	rows    int
 	z, a, d [][]float64
 	grad    []float64
 	loss    float64
 	cw      *classWeights // nil: every class weighs 1
+	pack    []float64
 }
 
 // classWeights are the factors of the weighted cross-entropy per output
@@ -109,7 +80,24 @@ func newWork(n *Net, rows int, backward bool) *work {
 			w.d[l] = make([]float64, k)
 		}
 	}
+	w.pack = make([]float64, packLen(n, rows, backward))
 	return w
+}
+
+// packLen returns the length of work.pack for passes over up to rows rows:
+// the most that any product of the pass needs (forward Z_{l+1} = A_l·W_lᵀ,
+// rows × n_{l+1} over n_l; backward ∂W_l = Δ_{l+1}ᵀ·A_l, n_{l+1} × n_l
+// over rows, and Δ_l = Δ_{l+1}·W_l, rows × n_l over n_{l+1}).
+func packLen(n *Net, rows int, backward bool) int {
+	words := 0
+	for l := 0; l+1 < len(n.sizes); l++ {
+		in, out := n.sizes[l], n.sizes[l+1]
+		words = max(words, productBufLen(rows, out, in))
+		if backward {
+			words = max(words, productBufLen(out, in, rows), productBufLen(rows, in, out))
+		}
+	}
+	return words
 }
 
 func mat64(data []float64, r, c int) blas64.General {
@@ -130,7 +118,7 @@ func (w *work) forward(n *Net, params []float64, x blas64.General) blas64.Genera
 		for i := 0; i < r; i++ {
 			copy(z.Data[i*k:(i+1)*k], b)
 		}
-		gemm(blas.NoTrans, blas.Trans, 1, in, n.weights(params, l), 1, z)
+		w.gemm(blas.NoTrans, blas.Trans, 1, in, n.weights(params, l), 1, z)
 		if l == L-1 {
 			return z
 		}
@@ -304,7 +292,7 @@ func (w *work) eval(n *Net, params []float64, x, t blas64.General, backward bool
 			al = mat64(w.a[l-1], r, in)
 		}
 		gw := w.grad[n.wOff[l] : n.wOff[l]+out*in]
-		gemm(blas.Trans, blas.NoTrans, 1, dl, al, 0, mat64(gw, out, in))
+		w.gemm(blas.Trans, blas.NoTrans, 1, dl, al, 0, mat64(gw, out, in))
 		gb := w.grad[n.bOff[l] : n.bOff[l]+out]
 		copy(gb, dl.Data[:out])
 		for i := 1; i < r; i++ {
@@ -315,7 +303,7 @@ func (w *work) eval(n *Net, params []float64, x, t blas64.General, backward bool
 		}
 		if l > 0 {
 			dp := mat64(w.d[l-1], r, in)
-			gemm(blas.NoTrans, blas.NoTrans, 1, dl, n.weights(params, l), 0, dp)
+			w.gemm(blas.NoTrans, blas.NoTrans, 1, dl, n.weights(params, l), 0, dp)
 			mulDerivative(n.act[l-1], dp.Data, w.z[l-1], w.a[l-1])
 		}
 	}

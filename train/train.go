@@ -35,7 +35,7 @@ type Config struct {
 	// optim's default). Limits.Observer is called after Progress.
 	Limits optim.Limits
 	// Batch is the mini-batch size in rows for momentum and Adam; 0 takes
-	// the spec's batch, and a spec batch of 0 means all rows.
+	// the spec's batch, and when that is 0 too, DefaultBatch.
 	Batch int
 	// Holdout rows are scored after every iteration; nil means none.
 	Holdout *data.Set
@@ -326,8 +326,8 @@ func methodName(m optim.Method) string {
 
 // Defaults returns lim and batch with the spec's `train:` values filled in
 // where they are zero: Iterations from train.iterations, GradTol from
-// train.tolerance, and the mini-batch size from train.batch. What is still
-// zero keeps optim's defaults (batch 0 = all rows).
+// train.tolerance, and the mini-batch size from train.batch, else
+// DefaultBatch. What is still zero keeps optim's defaults.
 func Defaults(s *spec.Network, lim optim.Limits, batch int) (optim.Limits, int) {
 	if lim.Iterations == 0 {
 		lim.Iterations = s.Train.Iterations
@@ -338,8 +338,19 @@ func Defaults(s *spec.Network, lim optim.Limits, batch int) (optim.Limits, int) 
 	if batch == 0 {
 		batch = s.Train.Batch
 	}
+	if batch == 0 {
+		batch = DefaultBatch
+	}
 	return lim, batch
 }
+
+// DefaultBatch is the mini-batch size, in rows, of momentum and Adam when
+// neither Config.Batch nor the spec's train.batch sets one; the other
+// methods use every row at every step. Mini-batches of 32 rows are common
+// practice and train well on the demos, where full-batch Adam at its
+// default rate stalled below the majority-class share; `seine train` and
+// `seine compare` both use it.
+const DefaultBatch = 32
 
 // CheckSet reports how set does not fit the net that s describes: no rows,
 // another number of feature columns or classes, no labels, or another

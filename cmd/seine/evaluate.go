@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -27,8 +28,9 @@ classes, confusion (rows = true class), per_class (class, rows, predicted,
 precision, recall, f1) and, for multi-label models, hamming_loss and
 threshold.
 
-For multi-label models accuracy is the share of rows whose whole set of
-classes is right, each class is scored as its own yes/no question, and
+For multi-label models the score is the exact-set accuracy, the share of
+rows whose whole set of classes is right (JSON "accuracy", as train's
+summary calls it too), each class is scored as its own yes/no question, and
 -threshold (default the model's operating thresholds, else 0.5) is the
 probability at or above which a class counts as present. A binary sigmoid
 model with an operating threshold decides the second class when its
@@ -59,6 +61,7 @@ while the data look like that set.
 
 func runEvaluate(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("evaluate", e)
+	comma := commaFlag(fs)
 	modelPath := fs.String("model", "", "model `FILE` written by seine train")
 	dataPath := fs.String("data", "", "labelled CSV `FILE` with a header row")
 	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
@@ -113,9 +116,10 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if *plot != "" && m.Multilabel() {
 		return usagef("-plot: a multi-label model has no confusion matrix (each class is its own yes/no question)")
 	}
-	set, err := loadData(ctx, *dataPath, dataForModel(m, *label, false))
+	opt := withComma(dataForModel(m, *label, false), comma)
+	set, err := loadData(ctx, *dataPath, opt)
 	if err != nil {
-		return err
+		return noLabelHint(err, *dataPath, opt.Label)
 	}
 	rep, err := evaluate(m, set, thresholds)
 	if err != nil {
@@ -207,7 +211,7 @@ func writeReport(w io.Writer, modelPath, dataPath string, m *nn.Model, r *score.
 	fmt.Fprintf(w, "%s (%s) on %s: %d rows\n\n", displayName(m), baseName(modelPath), baseName(dataPath), r.Rows)
 	right := int(math.Round(r.Accuracy * float64(r.Rows)))
 	if r.Multilabel {
-		fmt.Fprintf(w, "  exact sets      %6.2f%%  %d of %d rows with every class right\n", 100*r.Accuracy, right, r.Rows)
+		fmt.Fprintf(w, "  exact-set acc.  %6.2f%%  %d of %d rows with every class right (exact-set accuracy)\n", 100*r.Accuracy, right, r.Rows)
 		fmt.Fprintf(w, "  Hamming loss    %7.4f  share of (row, class) decisions wrong, threshold %g\n", *r.HammingLoss, r.Threshold)
 	} else {
 		fmt.Fprintf(w, "  accuracy        %6.2f%%  %d of %d rows right\n", 100*r.Accuracy, right, r.Rows)
@@ -276,4 +280,15 @@ func pad(s string, width int) string {
 // class on purpose: class weights in its cost or operating thresholds.
 func tilted(m *nn.Model) bool {
 	return m.Summary.ClassWeights != nil || m.Decision.Thresholds != nil
+}
+
+// noLabelHint turns "no label column" into a plain statement that points to
+// predict: evaluate scores a model against labelled rows, and a file
+// without labels is for prediction.
+func noLabelHint(err error, path, label string) error {
+	var de *data.Error
+	if label == "" || !errors.Is(err, data.ErrMissingColumn) || !errors.As(err, &de) || de.Column != label {
+		return err
+	}
+	return fmt.Errorf("%s has no label column %q, so there is nothing to score the model against; to classify unlabelled rows use seine predict (or name the label column with -label): %w", path, label, err)
 }

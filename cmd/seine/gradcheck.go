@@ -56,6 +56,7 @@ type gradReport struct {
 
 func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("gradient-check", e)
+	comma := commaFlag(fs)
 	specPath := fs.String("spec", "", "spec `FILE` (YAML) describing the net")
 	dataPath := fs.String("data", "", "CSV `FILE` whose first rows to use (default random rows)")
 	label := fs.String("label", "", "name of the label `COLUMN` in -data (default the last column)")
@@ -81,7 +82,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	var x, y *mat.Dense
 	source := "random"
 	if *dataPath != "" {
-		set, err := loadData(ctx, *dataPath, dataFor(s, *label))
+		set, err := loadData(ctx, *dataPath, withComma(dataFor(s, *label), comma))
 		if err != nil {
 			return err
 		}

@@ -46,6 +46,9 @@ type env struct {
 	// terminal reports whether stderr is an interactive terminal (progress
 	// bars) rather than a file or pipe (plain lines).
 	terminal bool
+	// flags is the flag set the command made last (newFlags), for
+	// completion scripts.
+	flags *flag.FlagSet
 }
 
 // usageError is bad usage: a wrong flag, a missing argument.
@@ -71,6 +74,8 @@ func commandList() []*command {
 		{name: "curve", help: curveHelp, args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
 		{name: "merge", help: mergeHelp, args: "[-json] [-plot FILE] [-trace FILE] PART...", summary: "put the parts of a sharded sweep, compare or curve back together", run: runMerge},
 		{name: "report", help: reportHelp, args: "-model FILE -data FILE -out FILE [-repeats N] [-seed S]", summary: "write one self-contained HTML page about a model on labelled data", run: runReport},
+		{name: "version", help: versionHelp, args: "", summary: "print the version, Go version, platform and matrix backend", run: runVersion},
+		{name: "completion", help: completionHelp, args: "bash|zsh|fish", summary: "print a shell completion script made from the command table", run: runCompletion},
 	}
 }
 
@@ -201,8 +206,9 @@ func topUsage(w io.Writer) {
 	fmt.Fprintln(w, "\nUsage:\n  seine <command> [flags]\n  seine help <command>\n\nCommands:")
 	for _, c := range commandList() {
 		fmt.Fprintf(w, "  %-15s %s\n", c.name, c.summary)
+		writeUsageDoc(w, c.name, "                  ")
 	}
-	fmt.Fprintln(w, "\nExit status: 0 success, 1 the work failed, 2 bad usage.")
+	fmt.Fprintln(w, "\nExit status: 0 success, 1 the work failed, 2 bad usage, 130/143 stopped by SIGINT/SIGTERM.")
 }
 
 // newFlags returns a flag set for command c. Parse errors come back from
@@ -211,9 +217,12 @@ func topUsage(w io.Writer) {
 func newFlags(c string, e *env) *flag.FlagSet {
 	fs := flag.NewFlagSet("seine "+c, flag.ContinueOnError)
 	fs.SetOutput(e.stdout)
+	e.flags = fs
 	cmd := lookup(c)
 	fs.Usage = func() {
-		fmt.Fprintf(fs.Output(), "Usage: seine %s %s\n\n%s.\n\nFlags:\n", c, cmd.args, upperFirst(cmd.summary))
+		fmt.Fprintf(fs.Output(), "Usage: seine %s %s\n\n%s.\n\n", c, cmd.args, upperFirst(cmd.summary))
+		writeUsageDoc(fs.Output(), c, "  ")
+		fmt.Fprint(fs.Output(), "\nFlags:\n")
 		fs.PrintDefaults()
 		if cmd.help != "" {
 			fmt.Fprint(fs.Output(), "\n"+cmd.help)
@@ -244,6 +253,9 @@ func parseFlags(fs *flag.FlagSet, args []string) error {
 		return usagef("%v", err)
 	}
 	if fs.NArg() > 0 {
+		if err := boolFlagValue(fs, args); err != nil {
+			return err
+		}
 		return usagef("unexpected argument %q", fs.Arg(0))
 	}
 	return nil

@@ -26,8 +26,9 @@ model the column is named "classes" and holds the classes whose
 probability is at least their threshold (the model's, else 0.5, or
 -threshold for all), joined with '|' ("" when none). Softmax models always
 take the most probable class. With -probabilities a
-column "p_CLASS" per class follows, with the probability written so that it
-reads back to the same float64.
+column "p_CLASS" per class follows, with the probability to -digits
+significant digits (6 by default; -digits 0 writes the shortest form that
+reads back to the same float64).
 
 The input needs the model's input columns, picked by name in any order
 (other columns are ignored), with the raw values the model was trained on:
@@ -42,10 +43,12 @@ output.
 
 func runPredict(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("predict", e)
+	comma := commaFlag(fs)
 	modelPath := fs.String("model", "", "model `FILE` written by seine train")
 	dataPath := fs.String("data", "", "CSV `FILE` with a header row; the label column may be absent")
 	out := fs.String("out", "", "write the predictions to `FILE` instead of standard output")
 	probs := fs.Bool("probabilities", false, "add one probability column per class")
+	digits := fs.Int("digits", 6, "significant `DIGITS` of the probabilities; 0 writes the shortest form that reads back to the same float64")
 	label := fs.String("label", "", "name of a label `COLUMN` to ignore (default: the model's)")
 	keep := fs.String("keep", "", "comma-separated `COLUMNS` copied from the input to the output, e.g. id,ts, to join rows back")
 	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class is predicted (default the model's operating thresholds, else 0.5)")
@@ -57,6 +60,8 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 		return usagef("-model is required")
 	case *dataPath == "":
 		return usagef("-data is required")
+	case *digits < 0 || *digits > 17:
+		return usagef("-digits %d: want 1 to 17 significant digits, or 0 for exact", *digits)
 	case *threshold != 0 && !(*threshold > 0 && *threshold < 1):
 		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
 	}
@@ -73,7 +78,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	opt := dataForModel(m, *label, true)
+	opt := withComma(dataForModel(m, *label, true), comma)
 	if *keep != "" {
 		opt.Keep = strings.Split(*keep, ",")
 		for i, k := range opt.Keep {
@@ -91,7 +96,9 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err := checkFinite(p, set, *dataPath); err != nil {
 		return err
 	}
-	write := func(w io.Writer) error { return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, thresholds) }
+	write := func(w io.Writer) error {
+		return writePredictions(w, m, p, opt.Keep, set.Kept, *probs, thresholds, *digits)
+	}
 	if *out == "" {
 		bw := bufio.NewWriter(e.stdout)
 		if err := write(bw); err != nil {
@@ -107,7 +114,10 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 }
 
 // writePredictions writes the CSV of predict for the probabilities p.
-func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kept [][]string, probs bool, thresholds []float64) error {
+func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kept [][]string, probs bool, thresholds []float64, digits int) error {
+	if digits == 0 {
+		digits = -1 // strconv: the shortest form that reads back exactly
+	}
 	cw := csv.NewWriter(w)
 	head := append(slices.Clone(keep), "class")
 	nk := len(keep)
@@ -159,7 +169,7 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 		}
 		if probs {
 			for j, v := range row {
-				rec[nk+1+j] = strconv.FormatFloat(v, 'g', -1, 64)
+				rec[nk+1+j] = strconv.FormatFloat(v, 'g', digits, 64)
 			}
 		}
 		if len(rec) == 1 && rec[0] == "" {

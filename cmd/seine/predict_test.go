@@ -12,12 +12,35 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 )
 
-func TestPredict(t *testing.T) {
+// TestPredictDigits: by default probabilities have 6 significant digits
+// (so a row's sum is 1 within 5 halves of 1e-6), and -digits 0 round-trips.
+func TestPredictDigits(t *testing.T) {
 	r := seine(t, "predict", "-model", baseModel, "-data", triageData, "-probabilities")
+	require.Equal(t, 0, r.code, r.stderr)
+	recs, err := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
+	require.NoError(t, err)
+	for _, rec := range recs[1:20] {
+		sum := 0.0
+		for _, c := range rec[1:] {
+			require.LessOrEqual(t, len(strings.TrimLeft(strings.Split(strings.Replace(c, ".", "", 1), "e")[0], "0")), 6, c)
+			p, err := strconv.ParseFloat(c, 64)
+			require.NoError(t, err)
+			sum += p
+		}
+		assert.InDelta(t, 1, sum, 2.5e-6)
+	}
+	assert.Equal(t, 2, seine(t, "predict", "-model", baseModel, "-data", triageData, "-digits", "18").code)
+}
+
+func TestPredict(t *testing.T) {
+	r := seine(t, "predict", "-model", baseModel, "-data", triageData, "-probabilities", "-digits", "0")
 	if r.code != 0 {
 		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
 	}
@@ -57,6 +80,7 @@ func TestPredict(t *testing.T) {
 			t.Errorf("row %d: class %q but the largest probability is %s", i+1, rec[0], want[best])
 		}
 		if i == 0 && rec[0] != m.Classes[0] {
+			// (-digits 0 writes each probability exactly, hence the 1e-12.)
 			// The first row of sessions.csv is a human session that every
 			// model trained here gets right (probability 0.99 at 100 iterations).
 			t.Errorf("row 1: %q, want human", rec[0])

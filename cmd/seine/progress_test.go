@@ -92,7 +92,7 @@ func TestMultilabelAndBinary(t *testing.T) {
 	if r := seine(t, "train", "-spec", "testdata/binary.yaml", "-data", "testdata/binary.csv", "-out", bin, "-iterations", "200", "-quiet"); r.code != 0 {
 		t.Fatalf("train binary: %d %q", r.code, r.stderr)
 	}
-	r = seine(t, "predict", "-model", bin, "-data", "testdata/binary.csv", "-probabilities")
+	r = seine(t, "predict", "-model", bin, "-data", "testdata/binary.csv", "-probabilities", "-digits", "0")
 	recs, _ = csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
 	if len(recs) != 61 || strings.Join(recs[0], ",") != "class,p_no,p_yes" {
 		t.Fatalf("binary predict: %q", r.stdout)

@@ -52,6 +52,7 @@ that apply where you deploy it.`
 
 func runReport(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("report", e)
+	comma := commaFlag(fs)
 	modelPath := fs.String("model", "", "model `FILE` written by seine train")
 	dataPath := fs.String("data", "", "labelled CSV `FILE` with a header row")
 	out := fs.String("out", "", "HTML `FILE` to write (conventionally NAME.html)")
@@ -88,7 +89,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	set, err := loadData(ctx, *dataPath, dataForModel(m, *label, false))
+	set, err := loadData(ctx, *dataPath, withComma(dataForModel(m, *label, false), comma))
 	if err != nil {
 		return err
 	}

@@ -80,6 +80,7 @@ type trainFlags struct {
 func runTrain(ctx context.Context, e *env, args []string) error {
 	var f trainFlags
 	fs := newFlags("train", e)
+	comma := commaFlag(fs)
 	fs.StringVar(&f.spec, "spec", "", "spec `FILE` (YAML) describing the net")
 	fs.StringVar(&f.data, "data", "", "training data, a CSV `FILE` with a header row")
 	fs.StringVar(&f.out, "out", "", "model `FILE` to write (conventionally NAME.seine.json)")
@@ -87,7 +88,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	fs.StringVar(&f.optimizer, "optimizer", "", "method: gd, cg, lbfgs, momentum or adam (default the spec's, else lbfgs)")
 	fs.IntVar(&f.iterations, "iterations", 0, "iteration limit, epochs for momentum and adam (default the spec's, else 10000)")
 	fs.Float64Var(&f.rate, "rate", 0, "learning rate for gd, momentum and adam (default the spec's, else the method's)")
-	fs.IntVar(&f.batch, "batch", 0, "mini-batch `rows` for momentum and adam; 0 = all rows (default the spec's)")
+	fs.IntVar(&f.batch, "batch", 0, "mini-batch `rows` for momentum and adam (default the spec's, else 32, as compare uses)")
 	fs.Float64Var(&f.holdout, "holdout", 0, "`FRACTION` of the rows, in (0, 1), kept out of training to measure the fit; 0 = none")
 	fs.Uint64Var(&f.seed, "seed", 0, "seed of the holdout split, initial params and shuffles (default the spec's init seed)")
 	fs.BoolVar(&f.standardize, "standardize", true, "centre and scale each feature on the training rows")
@@ -120,7 +121,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	if err := refuseOverwrite("-checkpoint", f.checkpoint, "spec", f.spec, "data", f.data, "-out", f.out); err != nil {
 		return err
 	}
-	set, err := loadData(ctx, f.data, dataFor(s, f.label))
+	set, err := loadData(ctx, f.data, withComma(dataFor(s, f.label), comma))
 	if err != nil {
 		return err
 	}
@@ -419,10 +420,10 @@ func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keep
 	row("stopped", "%s", stopReason(sm.Status))
 	row("final cost", "%.6g (training rows, penalty included)", sm.Cost)
 	if hasHold {
-		row("accuracy", "%.2f%% training, %.2f%% holdout", 100*sm.TrainAccuracy, 100*sm.HoldoutAccuracy)
+		row(accuracyWord(m), "%.2f%% training, %.2f%% holdout", 100*sm.TrainAccuracy, 100*sm.HoldoutAccuracy)
 		row("holdout", "cross-entropy %.6g", sm.HoldoutCost)
 	} else {
-		row("accuracy", "%.2f%% training", 100*sm.TrainAccuracy)
+		row(accuracyWord(m), "%.2f%% training", 100*sm.TrainAccuracy)
 	}
 	if keepBest {
 		row("kept", "params of iteration %d (lowest holdout cost)", res.BestIter)
@@ -473,4 +474,14 @@ func parseThresholdRule(text string) (*train.ThresholdRule, error) {
 	}
 	r.Target = v
 	return &r, nil
+}
+
+// accuracyWord names the accuracy of m's kind: "exact-set accuracy" for a
+// multi-label model (every class of a row right), the word evaluate and
+// the report use too.
+func accuracyWord(m *nn.Model) string {
+	if m.Multilabel() {
+		return "exact-set acc."
+	}
+	return "accuracy"
 }
