@@ -13,12 +13,15 @@ import (
 	"maps"
 	"math"
 	"os"
+	"runtime"
+	"runtime/debug"
 	"slices"
 	"strconv"
 	"strings"
 
 	"github.com/seine-ml/seine/diag"
 	"github.com/seine-ml/seine/internal/ctxio"
+	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
 )
@@ -28,7 +31,8 @@ what the whole run would have printed: the same table, -json and -plot (and
 -trace for compare), every figure equal bit for bit except wall times.
 
 Every part must come from the same command, spec (compared by a SHA-256 of
-its canonical form), data file (a SHA-256 of its bytes), settings and N, and
+its canonical form), data file (a SHA-256 of its bytes), settings, seine
+build (version, Go version, platform and matrix backend) and N, and
 every shard 0 … N−1 must be given exactly once; a part that breaks this is
 refused by name, and nothing is written.
 
@@ -196,6 +200,10 @@ type part struct {
 	Format  string `json:"format"`
 	Version int    `json:"version"`
 	Command string `json:"command"` // sweep, compare or curve
+	// Build names the seine build that computed the figures (see
+	// buildText): builds of other code, Go versions, platforms or matrix
+	// backends may round differently, so merge requires one build.
+	Build string `json:"build"`
 	K       int    `json:"k"`
 	N       int    `json:"n"`
 	// Problems are the spec and data files of the run (one, except for a
@@ -488,7 +496,7 @@ func intList(v []int) string {
 
 // writePart writes p as one line of JSON to -out, or to standard output.
 func writePart(e *env, o *shardOpts, p *part) error {
-	p.Format, p.Version, p.K, p.N = partFormat, partVersion, o.shard.K, o.shard.N
+	p.Format, p.Version, p.K, p.N, p.Build = partFormat, partVersion, o.shard.K, o.shard.N, buildText()
 	write := func(w io.Writer) error {
 		enc := json.NewEncoder(w)
 		enc.SetEscapeHTML(false)
@@ -501,6 +509,25 @@ func writePart(e *env, o *shardOpts, p *part) error {
 		return fmt.Errorf("-out %s: %w", o.out, err)
 	}
 	return nil
+}
+
+// buildText names this build: module version and VCS revision (when the
+// build information has them), library version, Go version, platform and
+// matrix backend.
+func buildText() string {
+	mod := "(unknown)"
+	if bi, ok := debug.ReadBuildInfo(); ok {
+		mod = bi.Main.Version
+		for _, st := range bi.Settings {
+			switch {
+			case st.Key == "vcs.revision":
+				mod += " " + st.Value
+			case st.Key == "vcs.modified" && st.Value == "true":
+				mod += " modified"
+			}
+		}
+	}
+	return fmt.Sprintf("seine %s; library %s; %s %s/%s; %s", mod, nn.Version, runtime.Version(), runtime.GOOS, runtime.GOARCH, nn.Backend())
 }
 
 // partError is a part refused by merge, named by its file.
@@ -669,6 +696,8 @@ func checkParts(paths []string, parts []*part) error {
 		switch {
 		case p.Command != p0.Command:
 			return partError(paths[i], "a part of %s, %s a part of %s", p.Command, paths[0], p0.Command)
+		case p.Build != p0.Build:
+			return partError(paths[i], "computed by another build (%s) than %s (%s); run every shard with one seine build", p.Build, paths[0], p0.Build)
 		case p.N != p0.N:
 			return partError(paths[i], "shard %d/%d, %s is one of %d shards", p.K, p.N, paths[0], p0.N)
 		case len(p.Problems) != len(p0.Problems):

@@ -212,6 +212,10 @@ func TestMergeBadParts(t *testing.T) {
 	twice := copyFile(t, p1, dir, "again.json")
 	notPart := filepath.Join(dir, "model.json")
 	require.NoError(t, os.WriteFile(notPart, []byte(`{"format": "something else"}`), 0o644))
+	partText, err := os.ReadFile(p1)
+	require.NoError(t, err)
+	otherBuild := filepath.Join(dir, "build.json")
+	require.NoError(t, os.WriteFile(otherBuild, bytes.Replace(partText, []byte(`"build":"seine `), []byte(`"build":"seine v0.0.1 `), 1), 0o644))
 	broken := filepath.Join(dir, "broken.json")
 	require.NoError(t, os.WriteFile(broken, []byte(`{"format": "seine-part", "ver`), 0o644))
 
@@ -225,6 +229,7 @@ func TestMergeBadParts(t *testing.T) {
 		{"other settings", []string{p0, otherIters, p2}, []string{otherIters, `-iterations "4"`}},
 		{"another N", []string{p0, otherN, p2}, []string{otherN, "shard 1/2", "one of 3"}},
 		{"another command", []string{p0, curvePart, p2}, []string{curvePart, "a part of curve"}},
+		{"another build", []string{p0, otherBuild, p2}, []string{otherBuild, "another build", "seine v0.0.1"}},
 		{"missing", []string{p0, p2}, []string{"shard 1/3 missing"}},
 		{"twice", []string{p0, p1, twice, p2}, []string{twice, "shard 1/3 again", p1}},
 		{"not a part", []string{p0, notPart}, []string{notPart, `"seine-part"`}},
