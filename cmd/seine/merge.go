@@ -204,8 +204,8 @@ type part struct {
 	// buildText): builds of other code, Go versions, platforms or matrix
 	// backends may round differently, so merge requires one build.
 	Build string `json:"build"`
-	K       int    `json:"k"`
-	N       int    `json:"n"`
+	K     int    `json:"k"`
+	N     int    `json:"n"`
 	// Problems are the spec and data files of the run (one, except for a
 	// comparison of several problems), in the order given.
 	Problems []partProblem `json:"problems"`
