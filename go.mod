@@ -3,7 +3,9 @@ module github.com/seine-ml/seine
 go 1.26.0
 
 require (
+	github.com/creack/pty v1.1.24
 	github.com/stretchr/testify v1.12.1
+	golang.org/x/sys v0.50.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/netlib v0.0.0-20190313105609-8cb42192e0e0
 	gonum.org/v1/plot v0.17.0
@@ -21,7 +23,6 @@ require (
 	go.yaml.in/yaml/v3 v3.0.5 // indirect
 	golang.org/x/exp v0.0.0-20261113113407-e3970619a1a4 // indirect
 	golang.org/x/image v0.30.0 // indirect
-	golang.org/x/sys v0.50.0 // indirect
 	golang.org/x/text v0.28.0 // indirect
 	golang.org/x/tools v0.52.1-0.20261106145633-d407941a339a // indirect
 )

@@ -2,6 +2,14 @@
 
 package nn
 
+import "github.com/seine-ml/seine/internal/gemm"
+
 // Backend names the matrix-multiply backend of this build, for version
-// reports: "pure Go" by default, "OpenBLAS" under the openblas build tag.
-func Backend() string { return "pure Go" }
+// reports: seine's own kernels, in AVX2+FMA assembly where the CPU has
+// them, else in portable Go ("OpenBLAS (cgo)" under the openblas tag).
+func Backend() string {
+	if gemm.Accelerated() {
+		return "seine kernels, AVX2+FMA assembly"
+	}
+	return "seine kernels, portable Go"
+}

@@ -50,3 +50,15 @@ func settingError(method, field string, v any, want string) error {
 func limitsError(field string, v any, want string) error {
 	return &FieldError{Struct: "Limits", Field: field, Value: v, Want: want, Err: ErrBadLimits}
 }
+
+// DivergedError says what diverged, and when: the error of a run that
+// stopped with status Diverged. It unwraps to ErrDiverged, and its message
+// is ErrDiverged's followed by Detail.
+type DivergedError struct {
+	Detail string // e.g. "cost 3.1e+05 at iteration 12 is more than 1000 times the starting cost 0.69"
+}
+
+func (e *DivergedError) Error() string { return ErrDiverged.Error() + ": " + e.Detail }
+
+// Unwrap returns ErrDiverged.
+func (e *DivergedError) Unwrap() error { return ErrDiverged }

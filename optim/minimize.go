@@ -210,7 +210,7 @@ func (r *runner) blownUp() bool {
 		return false
 	}
 	if r.f > Blowup*math.Max(1, math.Abs(r.refF)) {
-		r.err = fmt.Errorf("%w: cost %.4g at iteration %d is more than %g times the starting cost %.4g", ErrDiverged, r.f, r.iter, Blowup, r.refF)
+		r.err = &DivergedError{Detail: fmt.Sprintf("cost %.4g at iteration %d is more than %g times the starting cost %.4g", r.f, r.iter, Blowup, r.refF)}
 		return true
 	}
 	return false
@@ -305,7 +305,7 @@ func (r *runner) diverge(what string, i int, v float64) {
 		r.err = fmt.Errorf("%w: %s at x0 is %v", ErrNotFiniteStart, what, v)
 		return
 	}
-	r.err = fmt.Errorf("%w: %s is %v at evaluation %g (iteration %d)", ErrDiverged, what, v, r.evals, r.iter+1)
+	r.err = &DivergedError{Detail: fmt.Sprintf("%s is %v at evaluation %g (iteration %d)", what, v, r.evals, r.iter+1)}
 }
 
 // evalStart evaluates the cost and gradient at r.x for methods that work on

@@ -89,6 +89,10 @@ type Result struct {
 // ErrConfig is wrapped by errors in a Config or in how it fits the data.
 var ErrConfig = errors.New("train: bad configuration")
 
+// ErrNotFiniteParams is wrapped by the error of a run whose params ended
+// NaN or ±Inf: no model is built from them.
+var ErrNotFiniteParams = errors.New("train: params not finite")
+
 // MethodFor returns the optim method that a spec's optimizer name stands
 // for, with the learning rate set where the method has one (0 keeps the
 // method's default) and the mini-batch shuffles seeded. GD with rate 0 uses
@@ -265,7 +269,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	}
 	for i, v := range params {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("train: param %d is %v after %s: refusing to build a model: %w", i, v, run.Status, runErr)
+			return nil, fmt.Errorf("%w: param %d is %v after %s: refusing to build a model: %w", ErrNotFiniteParams, i, v, run.Status, runErr)
 		}
 	}
 	model, err := nn.NewModel(prep.Spec, params, prep.Encoder, set.Classes)

@@ -277,8 +277,9 @@ func (f *trainFlags) failure(e *env, s *spec.Network, res *train.Result, err err
 		return fmt.Errorf("interrupted at iteration %d: saved the model of iteration %d to %s", res.Run.Iterations, res.BestIter, f.out)
 	case errors.Is(err, optim.ErrDiverged):
 		detail := err.Error()
-		if i := strings.Index(detail, optim.ErrDiverged.Error()+": "); i >= 0 {
-			detail = detail[i+len(optim.ErrDiverged.Error())+2:]
+		var de *optim.DivergedError
+		if errors.As(err, &de) {
+			detail = de.Detail
 		}
 		hint := "a smaller -rate"
 		if o := s.Train.Optimizer; o == 0 || o == spec.CG || o == spec.LBFGS {
@@ -288,8 +289,7 @@ func (f *trainFlags) failure(e *env, s *spec.Network, res *train.Result, err err
 	case errors.Is(err, optim.ErrNotFiniteStart):
 		return fmt.Errorf("the cost or gradient at the initial params is not finite (try -standardize or a smaller init scale); %s was not written", f.out)
 	}
-	msg := err.Error()
-	if strings.Contains(msg, "refusing to build a model") {
+	if errors.Is(err, train.ErrNotFiniteParams) {
 		return fmt.Errorf("the trained params are not finite, so no model was built; %s was not written (%v)", f.out, err)
 	}
 	return fmt.Errorf("%v; %s was not written", err, f.out)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -41,7 +42,8 @@ func (e *fieldError) Error() string { return e.field + ": " + e.msg }
 // Whether each value suits its input is the model's to say (see classify).
 func parseRequest(r io.Reader, features []string) (rows [][]encode.Value, single bool, ferr *fieldError) {
 	inputs := len(features)
-	p := parser{dec: json.NewDecoder(r)}
+	seen := new(bytes.Buffer) // the bytes read so far (at most maxBody), to name a bad character
+	p := parser{dec: json.NewDecoder(io.TeeReader(r, seen)), seen: seen}
 	p.dec.UseNumber()
 	if ferr := p.open('{', "body", "a JSON object"); ferr != nil {
 		return nil, false, ferr
@@ -92,7 +94,8 @@ func parseRequest(r io.Reader, features []string) (rows [][]encode.Value, single
 
 // parser reads the request's tokens.
 type parser struct {
-	dec *json.Decoder
+	dec  *json.Decoder
+	seen *bytes.Buffer
 }
 
 // fail turns a read error at field into a fieldError.
@@ -104,8 +107,10 @@ func (p *parser) fail(field string, err error) *fieldError {
 		return &fieldError{field: "body", msg: fmt.Sprintf("larger than %d bytes", tooBig.Limit), err: err}
 	case errors.As(err, &syn):
 		msg := fmt.Sprintf("invalid JSON at byte %d: %v", syn.Offset, err)
-		if strings.Contains(msg, "'N'") || strings.Contains(msg, "'I'") {
-			msg += " (NaN and Infinity are not JSON numbers)"
+		if b := p.seen.Bytes(); syn.Offset >= 1 && syn.Offset <= int64(len(b)) {
+			if c := b[syn.Offset-1]; c == 'N' || c == 'I' {
+				msg += " (NaN and Infinity are not JSON numbers)"
+			}
 		}
 		return &fieldError{field: field, msg: msg, err: err}
 	case err == io.EOF, errors.Is(err, io.ErrUnexpectedEOF):
