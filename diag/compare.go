@@ -80,6 +80,11 @@ type CompareConfig struct {
 	// Workers bounds the goroutines of one evaluation; 0 means GOMAXPROCS.
 	// Costs are bit-identical whatever it is; times are not.
 	Workers int
+	// Shard, when set, runs only that part of the comparison's runs (see
+	// Shard); the zero value runs them all.
+	Shard Shard
+	// Progress, when not nil, is called after every run.
+	Progress func(FitDone)
 }
 
 // TracePoint is one iteration of one run.
@@ -170,6 +175,12 @@ type Comparison struct {
 	TrainRows, HoldoutRows int
 	Batch                  int      // mini-batch rows of momentum and Adam
 	Warnings               []string // the scaler's, e.g. constant columns
+	// Shard is the part of the comparison this result holds; the zero
+	// value means the whole comparison. In a part, Seeds lists every seed
+	// of the whole comparison and Runs[i] only the part's runs of method
+	// i, by seed; Best, Targets and Summary are nil and the runs' figures
+	// to target unset until MergeComparisons puts the parts together.
+	Shard Shard
 }
 
 // Compare runs every method of cfg on the net that s describes and the
@@ -182,7 +193,10 @@ type Comparison struct {
 // status and do not stop the comparison. Compare checks ctx between runs
 // and inside each run (through optim.Minimize); when it is cancelled it
 // returns the comparison so far (complete seeds only, or nil if none) and
-// an error wrapping ctx.Err().
+// an error wrapping ctx.Err() (nil for a shard).
+//
+// The runs are enumerated seed × method: run i = k·M + j is method j (of
+// M, in table order) from seed k. cfg.Shard selects a part of them.
 func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareConfig) (*Comparison, error) {
 	if s == nil || set == nil {
 		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
@@ -194,6 +208,9 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {
+		return nil, err
+	}
+	if err := cfg.Shard.check(); err != nil {
 		return nil, err
 	}
 	names, err := contenderNames(cfg)
@@ -236,11 +253,24 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 		c.HoldoutRows = holdSet.Rows()
 	}
 	x0 := make([]float64, net.NumParams())
-	for _, seed := range seeds {
+	sharded := !cfg.Shard.Whole()
+	if sharded {
+		c.Shard = cfg.Shard
+		c.Seeds = seeds
+	}
+	total, done, start := cfg.Shard.Count(len(seeds)*len(names)), 0, time.Now()
+	for k, seed := range seeds {
 		net.Init(x0, seed)
 		runs := make([]Run, len(names))
 		for i := range names {
+			idx := k*len(names) + i
+			if !cfg.Shard.has(idx) {
+				continue
+			}
 			if err := ctx.Err(); err != nil {
+				if sharded {
+					return nil, fmt.Errorf("diag: compare: %w", err)
+				}
 				return c.finish(), fmt.Errorf("diag: compare: %w", err)
 			}
 			m, batched, err := contender(cfg, i, s, seed)
@@ -249,18 +279,91 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 			}
 			r, err := p.run(ctx, m, batched, x0, lim)
 			if err != nil {
-				if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+				if !sharded && (errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)) {
 					return c.finish(), fmt.Errorf("diag: compare: %s, seed %d: %w", names[i], seed, err)
 				}
 				return nil, fmt.Errorf("diag: compare: %s, seed %d: %w", names[i], seed, err)
 			}
 			r.Method, r.Seed = names[i], seed
-			runs[i] = r
+			if sharded {
+				c.Runs[i] = append(c.Runs[i], r)
+			} else {
+				runs[i] = r
+			}
+			done++
+			if cfg.Progress != nil {
+				cfg.Progress(FitDone{Index: idx, Done: done, Total: total, Method: names[i], Seed: seed, Rows: c.TrainRows, Elapsed: time.Since(start)})
+			}
+		}
+		if sharded {
+			continue
 		}
 		for i := range names {
 			c.Runs[i] = append(c.Runs[i], runs[i])
 		}
 		c.Seeds = append(c.Seeds, seed)
+	}
+	if sharded {
+		return c, nil
+	}
+	return c.finish(), nil
+}
+
+// MergeComparisons puts the parts of a sharded comparison back together:
+// parts must hold each shard 0 … N−1 of one N exactly once, all of the
+// same comparison (methods, seeds, target, rows, batch and warnings; that
+// they come from the same spec, data and settings is for the caller to
+// check). The result equals the whole comparison's, bit for bit, wall
+// times aside. Errors wrap ErrConfig and name the part by its index in
+// parts.
+func MergeComparisons(parts []*Comparison) (*Comparison, error) {
+	for i, p := range parts {
+		if p == nil {
+			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
+		}
+	}
+	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+		return nil, err
+	}
+	p0 := parts[0]
+	M, S := len(p0.Methods), len(p0.Seeds)
+	c := &Comparison{
+		Methods: slices.Clone(p0.Methods), Seeds: slices.Clone(p0.Seeds), Runs: make([][]Run, M),
+		Target: p0.Target, TrainRows: p0.TrainRows, HoldoutRows: p0.HoldoutRows, Batch: p0.Batch,
+		Warnings: slices.Clone(p0.Warnings),
+	}
+	if M == 0 || S == 0 {
+		return nil, fmt.Errorf("%w: part 0 has %d methods and %d seeds", ErrConfig, M, S)
+	}
+	have := make([]bool, M*S)
+	for i := range c.Runs {
+		c.Runs[i] = make([]Run, S)
+	}
+	for pi, p := range parts {
+		if !slices.Equal(p.Methods, c.Methods) || !slices.Equal(p.Seeds, c.Seeds) || p.Target != c.Target ||
+			p.TrainRows != c.TrainRows || p.HoldoutRows != c.HoldoutRows || p.Batch != c.Batch || !slices.Equal(p.Warnings, c.Warnings) {
+			return nil, fmt.Errorf("%w: part %d is another comparison than part 0 (methods, seeds, target, rows, batch or warnings differ)", ErrConfig, pi)
+		}
+		if len(p.Runs) != M {
+			return nil, fmt.Errorf("%w: part %d has runs of %d methods, want %d", ErrConfig, pi, len(p.Runs), M)
+		}
+		n := 0
+		for i, runs := range p.Runs {
+			for _, r := range runs {
+				k := slices.Index(c.Seeds, r.Seed)
+				idx := k*M + i
+				if r.Method != c.Methods[i] || k < 0 || !p.Shard.has(idx) || have[idx] {
+					return nil, fmt.Errorf("%w: part %d (shard %s): run of %s from seed %d does not belong there or is given twice",
+						ErrConfig, pi, p.Shard, r.Method, r.Seed)
+				}
+				have[idx] = true
+				c.Runs[i][k] = r
+				n++
+			}
+		}
+		if want := p.Shard.Count(M * S); n != want {
+			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d runs, want %d", ErrConfig, pi, p.Shard, n, want)
+		}
 	}
 	return c.finish(), nil
 }

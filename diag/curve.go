@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"sort"
+	"time"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/optim"
@@ -44,15 +45,22 @@ type CurveConfig struct {
 	Limits  optim.Limits
 	NoScale bool
 	Workers int
+	// Shard, when set, runs only that part of the curve's fits (see
+	// Shard); the zero value runs them all.
+	Shard Shard
+	// Progress, when not nil, is called after every fit.
+	Progress func(FitDone)
 }
 
 // CurvePoint is the fit on one training size.
 type CurvePoint struct {
+	Step int // 1-based place of the size on the curve: i of steps
 	Rows int // training rows used
 	// TrainCost is the mean cross-entropy on those training rows and
 	// HoldoutCost on the holdout, both without the penalty, in nats.
 	TrainCost, HoldoutCost         float64
 	TrainAccuracy, HoldoutAccuracy float64
+	Warnings                       []string // the fit's own
 }
 
 // Shape is a reading of a learning curve's shape: a hint, not a verdict.
@@ -89,7 +97,15 @@ type Curve struct {
 	// about the features, the scale against which "high" is read.
 	Baseline float64
 	Shape    Shape
+	// Warnings are those of the fits (each text once, in the order of the
+	// points).
 	Warnings []string
+	// Steps is the number of sizes of the whole curve.
+	Steps int
+	// Shard is the part of the curve this result holds; the zero value
+	// means the whole curve. A part's Points are its own fits only, and
+	// its Shape is NoClearSign until MergeCurves puts the parts together.
+	Shard Shard
 }
 
 // LearningCurve keeps a stratified holdout of set, then trains the net of
@@ -112,6 +128,9 @@ type Curve struct {
 //	NoClearSign   otherwise.
 //
 // The thresholds are rules of thumb of this package, not published values.
+//
+// Fit i (0-based) trains the size of step i + 1; cfg.Shard selects a part
+// of them. Every shard computes the split, the order and the baseline.
 func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg CurveConfig) (*Curve, error) {
 	if s == nil || set == nil {
 		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
@@ -135,6 +154,9 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	if err := checkSet(s, set); err != nil {
 		return nil, err
 	}
+	if err := cfg.Shard.check(); err != nil {
+		return nil, err
+	}
 	seed := cfg.Seed
 	if seed == 0 {
 		seed = s.Init.Seed
@@ -148,9 +170,13 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 		return nil, fmt.Errorf("%w: %d steps for %d training rows; want at most one step per row", ErrConfig, steps, n)
 	}
 	order := stratifiedOrder(trainSet, seed)
-	c := &Curve{HoldoutRows: holdSet.Rows(), Baseline: baseline(trainSet, holdSet)}
+	c := &Curve{HoldoutRows: holdSet.Rows(), Baseline: baseline(trainSet, holdSet), Steps: steps, Shard: cfg.Shard}
 	fc := fitConfig{method: cfg.Method, limits: cfg.Limits, noScale: cfg.NoScale, workers: cfg.Workers, seed: seed}
+	total, start := cfg.Shard.Count(steps), time.Now()
 	for i := 1; i <= steps; i++ {
+		if !cfg.Shard.has(i - 1) {
+			continue
+		}
 		if err := ctx.Err(); err != nil {
 			return nil, fmt.Errorf("diag: curve: %w", err)
 		}
@@ -168,9 +194,66 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 		}
 		c.Warnings = appendNew(c.Warnings, f.warn...)
 		c.Points = append(c.Points, CurvePoint{
-			Rows: k, TrainCost: f.trainCost, HoldoutCost: f.validCost,
-			TrainAccuracy: f.trainAcc, HoldoutAccuracy: f.validAcc,
+			Step: i, Rows: k, TrainCost: f.trainCost, HoldoutCost: f.validCost,
+			TrainAccuracy: f.trainAcc, HoldoutAccuracy: f.validAcc, Warnings: f.warn,
 		})
+		if cfg.Progress != nil {
+			units := 0
+			if len(sk.Hidden) > 0 {
+				units = sk.Hidden[0].Units
+			}
+			cfg.Progress(FitDone{
+				Index: i - 1, Done: len(c.Points), Total: total, Lambda: sk.Penalty.L2, Units: units,
+				Rows: k, Elapsed: time.Since(start),
+			})
+		}
+	}
+	if cfg.Shard.Whole() {
+		c.Shape = shapeOf(c.Points, c.Baseline)
+	}
+	return c, nil
+}
+
+// MergeCurves puts the parts of a sharded learning curve back together:
+// parts must hold each shard 0 … N−1 of one N exactly once, all of the
+// same curve (steps, holdout rows and baseline; that they come from the
+// same spec, data and settings is for the caller to check). The result
+// equals the whole curve's, bit for bit. Errors wrap ErrConfig and name
+// the part by its index in parts.
+func MergeCurves(parts []*Curve) (*Curve, error) {
+	for i, p := range parts {
+		if p == nil {
+			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
+		}
+	}
+	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+		return nil, err
+	}
+	p0 := parts[0]
+	if p0.Steps < 1 {
+		return nil, fmt.Errorf("%w: part 0: %d steps, want ≥ 1", ErrConfig, p0.Steps)
+	}
+	c := &Curve{HoldoutRows: p0.HoldoutRows, Baseline: p0.Baseline, Steps: p0.Steps, Points: make([]CurvePoint, p0.Steps)}
+	have := make([]bool, c.Steps)
+	for i, p := range parts {
+		if p.Steps != c.Steps || p.HoldoutRows != c.HoldoutRows || math.Float64bits(p.Baseline) != math.Float64bits(c.Baseline) {
+			return nil, fmt.Errorf("%w: part %d is a curve of %d steps, %d holdout rows, baseline %g; part 0 of %d, %d, %g",
+				ErrConfig, i, p.Steps, p.HoldoutRows, p.Baseline, c.Steps, c.HoldoutRows, c.Baseline)
+		}
+		if len(p.Points) != p.Shard.Count(p.Steps) {
+			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d points, want %d", ErrConfig, i, p.Shard, len(p.Points), p.Shard.Count(p.Steps))
+		}
+		for _, pt := range p.Points {
+			j := pt.Step - 1
+			if j < 0 || j >= c.Steps || !p.Shard.has(j) || have[j] {
+				return nil, fmt.Errorf("%w: part %d (shard %s): step %d does not belong there or is given twice", ErrConfig, i, p.Shard, pt.Step)
+			}
+			have[j] = true
+			c.Points[j] = pt
+		}
+	}
+	for _, pt := range c.Points {
+		c.Warnings = appendNew(c.Warnings, pt.Warnings...)
 	}
 	c.Shape = shapeOf(c.Points, c.Baseline)
 	return c, nil

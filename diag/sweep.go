@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"time"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/optim"
@@ -41,6 +42,11 @@ type SweepConfig struct {
 	NoScale bool
 	// Workers bounds the goroutines of one evaluation; 0 means GOMAXPROCS.
 	Workers int
+	// Shard, when set, runs only that part of the sweep's fits (see
+	// Shard); the zero value runs them all.
+	Shard Shard
+	// Progress, when not nil, is called after every fit.
+	Progress func(FitDone)
 }
 
 // SweepParam names what a sweep varies.
@@ -88,9 +94,34 @@ type Sweep struct {
 	// first on ties).
 	Best int
 	// Folds is the number of fits per value: k, or 1 with a holdout.
-	Folds    int
-	Holdout  float64 // the holdout fraction, or 0 with folds
+	Folds   int
+	Holdout float64 // the holdout fraction, or 0 with folds
+	// Warnings are those of the fits (each text once, in the order of the
+	// fits).
 	Warnings []string
+	// Fits holds every fit that ran, in the sweep's order: fit i trained
+	// value i / Folds and validated on fold i mod Folds.
+	Fits []SweepFit
+	// Size is the number of fits of the whole sweep: values × Folds.
+	Size int
+	// Shard is the part of the sweep this result holds; the zero value
+	// means the whole sweep. A part holds Fits, Warnings and the settings
+	// above only: Points is nil until MergeSweeps puts the parts together.
+	Shard Shard
+}
+
+// SweepFit is one fit of a sweep.
+type SweepFit struct {
+	Index int // place in the sweep's order
+	Value int // index of the value in the list swept
+	Fold  int // 0-based fold validated on (0 with a holdout)
+	// Lambda and Units are the fit's penalty strength and first hidden
+	// layer's units (0 without one).
+	Lambda float64
+	Units  int
+	// Costs and accuracies as in SweepPoint, of this fit alone.
+	TrainCost, ValidCost, TrainAccuracy, ValidAccuracy float64
+	Warnings                                           []string
 }
 
 // SweepPenalty trains the net that s describes at each penalty strength
@@ -99,6 +130,10 @@ type Sweep struct {
 // cost and accuracy at each. The same folds and initial params serve
 // every λ. It checks ctx between fits and returns ctx.Err() wrapped when
 // cancelled.
+//
+// The fits are enumerated value × fold: fit i = v·k + f trains value v
+// (in the order given) and validates on fold f of k (k = 1 with a
+// holdout). cfg.Shard selects a part of them.
 func SweepPenalty(ctx context.Context, s *spec.Network, set *data.Set, lambdas []float64, cfg SweepConfig) (*Sweep, error) {
 	if s == nil {
 		return nil, fmt.Errorf("%w: nil spec", ErrConfig)
@@ -161,6 +196,9 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 			return nil, err
 		}
 	}
+	if err := cfg.Shard.check(); err != nil {
+		return nil, err
+	}
 	seed := cfg.Seed
 	if seed == 0 {
 		seed = specs[0].Init.Seed
@@ -186,34 +224,117 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 			parts = append(parts, [2][]int{data.TrainRows(folds, f), folds[f]})
 		}
 	}
-	sw := &Sweep{Param: param, Folds: len(parts), Holdout: cfg.Holdout}
+	nf := len(parts)
+	sw := &Sweep{Param: param, Folds: nf, Holdout: cfg.Holdout, Size: len(specs) * nf, Shard: cfg.Shard}
 	fc := fitConfig{method: cfg.Method, limits: cfg.Limits, noScale: cfg.NoScale, workers: cfg.Workers, seed: seed}
-	for i, sp := range specs {
-		var tc, vc, ta, va []float64
-		for _, pt := range parts {
+	total, start := cfg.Shard.Count(sw.Size), time.Now()
+	for v, sp := range specs {
+		units := 0
+		if len(sp.Hidden) > 0 {
+			units = sp.Hidden[0].Units
+		}
+		for f, pt := range parts {
+			idx := v*nf + f
+			if !cfg.Shard.has(idx) {
+				continue
+			}
 			if err := ctx.Err(); err != nil {
 				return nil, fmt.Errorf("diag: sweep: %w", err)
 			}
-			f, err := fit(ctx, sp, set.Subset(pt[0]), set.Subset(pt[1]), fc)
+			r, err := fit(ctx, sp, set.Subset(pt[0]), set.Subset(pt[1]), fc)
 			if err != nil {
 				return nil, fmt.Errorf("diag: sweep at %s = %s: %w", param, valueOf(param, sp), err)
 			}
-			sw.Warnings = appendNew(sw.Warnings, f.warn...)
-			tc, vc = append(tc, f.trainCost), append(vc, f.validCost)
-			ta, va = append(ta, f.trainAcc), append(va, f.validAcc)
-		}
-		p := SweepPoint{
-			Lambda: sp.Penalty.L2, TrainCost: statOf(tc), ValidCost: statOf(vc),
-			TrainAccuracy: statOf(ta), ValidAccuracy: statOf(va),
-		}
-		if len(sp.Hidden) > 0 {
-			p.Units = sp.Hidden[0].Units
-		}
-		sw.Points = append(sw.Points, p)
-		if sw.Points[i].ValidCost.Mean < sw.Points[sw.Best].ValidCost.Mean {
-			sw.Best = i
+			sw.Fits = append(sw.Fits, SweepFit{
+				Index: idx, Value: v, Fold: f, Lambda: sp.Penalty.L2, Units: units,
+				TrainCost: r.trainCost, ValidCost: r.validCost, TrainAccuracy: r.trainAcc, ValidAccuracy: r.validAcc,
+				Warnings: r.warn,
+			})
+			sw.Warnings = appendNew(sw.Warnings, r.warn...)
+			if cfg.Progress != nil {
+				cfg.Progress(FitDone{
+					Index: idx, Done: len(sw.Fits), Total: total, Lambda: sp.Penalty.L2, Units: units,
+					Fold: f, Folds: nf, Rows: len(pt[0]), Elapsed: time.Since(start),
+				})
+			}
 		}
 	}
+	if cfg.Shard.Whole() {
+		sw.summarise()
+	}
+	return sw, nil
+}
+
+// summarise sets the points, the best and the warnings of a sweep from its
+// fits, which must be all of them in order.
+func (sw *Sweep) summarise() {
+	sw.Points, sw.Best, sw.Warnings = nil, 0, nil
+	for i := 0; i < len(sw.Fits); i += sw.Folds {
+		var tc, vc, ta, va []float64
+		for _, f := range sw.Fits[i : i+sw.Folds] {
+			tc, vc = append(tc, f.TrainCost), append(vc, f.ValidCost)
+			ta, va = append(ta, f.TrainAccuracy), append(va, f.ValidAccuracy)
+			sw.Warnings = appendNew(sw.Warnings, f.Warnings...)
+		}
+		f := sw.Fits[i]
+		sw.Points = append(sw.Points, SweepPoint{
+			Lambda: f.Lambda, Units: f.Units, TrainCost: statOf(tc), ValidCost: statOf(vc),
+			TrainAccuracy: statOf(ta), ValidAccuracy: statOf(va),
+		})
+		if p := len(sw.Points) - 1; sw.Points[p].ValidCost.Mean < sw.Points[sw.Best].ValidCost.Mean {
+			sw.Best = p
+		}
+	}
+}
+
+// MergeSweeps puts the parts of a sharded sweep back together: parts must
+// hold each shard 0 … N−1 of one N exactly once, all of the same sweep
+// (parameter, folds, holdout and size; that they come from the same spec,
+// data and settings is for the caller to check). The result equals the
+// whole sweep's, bit for bit. Errors wrap ErrConfig and name the part by
+// its index in parts.
+func MergeSweeps(parts []*Sweep) (*Sweep, error) {
+	for i, p := range parts {
+		if p == nil {
+			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
+		}
+	}
+	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+		return nil, err
+	}
+	p0 := parts[0]
+	if p0.Folds < 1 || p0.Size < 0 || p0.Size%p0.Folds != 0 {
+		return nil, fmt.Errorf("%w: part 0: %d fits in folds of %d", ErrConfig, p0.Size, p0.Folds)
+	}
+	sw := &Sweep{Param: p0.Param, Folds: p0.Folds, Holdout: p0.Holdout, Size: p0.Size, Fits: make([]SweepFit, p0.Size)}
+	have := make([]bool, p0.Size)
+	for i, p := range parts {
+		if p.Param != sw.Param || p.Folds != sw.Folds || p.Holdout != sw.Holdout || p.Size != sw.Size {
+			return nil, fmt.Errorf("%w: part %d is a sweep of %s over %d fits (%d folds, holdout %g), part 0 of %s over %d (%d folds, holdout %g)",
+				ErrConfig, i, p.Param, p.Size, p.Folds, p.Holdout, sw.Param, sw.Size, sw.Folds, sw.Holdout)
+		}
+		if len(p.Fits) != p.Shard.Count(p.Size) {
+			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d fits, want %d", ErrConfig, i, p.Shard, len(p.Fits), p.Shard.Count(p.Size))
+		}
+		for _, f := range p.Fits {
+			if f.Index < 0 || f.Index >= sw.Size || !p.Shard.has(f.Index) || have[f.Index] ||
+				f.Value != f.Index/sw.Folds || f.Fold != f.Index%sw.Folds {
+				return nil, fmt.Errorf("%w: part %d (shard %s): fit %d (value %d, fold %d) does not belong there or is given twice",
+					ErrConfig, i, p.Shard, f.Index, f.Value, f.Fold)
+			}
+			have[f.Index] = true
+			sw.Fits[f.Index] = f
+		}
+	}
+	for v := 0; v < sw.Size; v += sw.Folds {
+		for _, f := range sw.Fits[v : v+sw.Folds] {
+			if f.Lambda != sw.Fits[v].Lambda && !(math.IsNaN(f.Lambda) && math.IsNaN(sw.Fits[v].Lambda)) || f.Units != sw.Fits[v].Units {
+				return nil, fmt.Errorf("%w: fit %d has λ = %g and %d units, fit %d of the same value λ = %g and %d units",
+					ErrConfig, f.Index, f.Lambda, f.Units, v, sw.Fits[v].Lambda, sw.Fits[v].Units)
+			}
+		}
+	}
+	sw.summarise()
 	return sw, nil
 }
 

@@ -52,6 +52,12 @@ object per method (and problem): optimizer, final_cost, final_cost_min,
 final_cost_max, evaluations, iterations, seconds, evaluations_to_target,
 seconds_to_target, reached, seeds, holdout_accuracy, status; null stands
 for a figure that does not exist.
+
+Progress goes to standard error, a line per finished run (a line redrawn
+in place on a terminal); -quiet leaves it out. -shard K/N runs only the
+runs i (problem × seed × method, see seine help merge) with i mod N = K and
+writes them as JSON, to -out FILE or standard output; seine merge puts the
+N parts back together.
 `
 
 // multiFlag collects a repeatable string flag.
@@ -82,6 +88,8 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	asJSON := fs.Bool("json", false, "write the table as a JSON array")
 	plot := fs.String("plot", "", "draw cost curves (one problem) or performance profiles (several) to `FILE`.png or .svg")
 	trace := fs.String("trace", "", "write every iteration of every run to `FILE`.csv")
+	quiet := fs.Bool("quiet", false, "no progress on standard error")
+	so := addShardFlags(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -134,6 +142,9 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := so.check(os.Getenv, *plot, *trace, inputs...); err != nil {
+		return err
+	}
 	if *trace != "" {
 		if err := refuseOverwrite("-trace", *trace, inputs...); err != nil {
 			return err
@@ -155,6 +166,7 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 	}
 	comps := make([]*diag.Comparison, len(pairs))
 	names := make([]string, len(pairs))
+	var pps []partProblem
 	for i, p := range pairs {
 		s, err := loadSpec(ctx, p.spec)
 		if err != nil {
@@ -165,26 +177,60 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 		names[i] = problemName(s, p.data)
+		pr := progressFor(e, *quiet, "compare", func(f diag.FitDone) string { return fmt.Sprintf("%s, seed %d", f.Method, f.Seed) })
 		if len(pairs) > 1 {
-			fmt.Fprintf(e.stderr, "compare: problem %d of %d: %s\n", i+1, len(pairs), names[i])
+			pr.note("compare: problem %d of %d: %s", i+1, len(pairs), names[i])
+			pr.prefix = fmt.Sprintf("problem %d/%d: ", i+1, len(pairs))
 		}
-		c, err := diag.Compare(ctx, s, set, cfg)
+		c := cfg
+		c.Progress = pr.fit
+		if so.on() {
+			c.Shard = problemShard(so.shard, i, len(opts)*cfg.Seeds)
+		}
+		comp, err := diag.Compare(ctx, s, set, c)
+		pr.done()
 		if err != nil {
 			return fmt.Errorf("%s: %w", names[i], err)
 		}
-		for _, w := range c.Warnings {
+		for _, w := range comp.Warnings {
 			fmt.Fprintf(e.stderr, "compare: %s: warning: %s\n", names[i], w)
 		}
-		comps[i] = c
+		comps[i] = comp
+		if so.on() {
+			pp, err := describeProblem(ctx, names[i], s, p.data, set.Rows())
+			if err != nil {
+				return err
+			}
+			pps = append(pps, pp)
+		}
 	}
+	if so.on() {
+		settings := settingsOf(fs)
+		names := make([]string, len(opts))
+		for i, o := range opts {
+			names[i] = o.String()
+		}
+		settings["optimizers"] = strings.Join(names, ",")
+		pt := &part{Command: "compare", Problems: pps, Settings: settings}
+		for _, c := range comps {
+			pt.Compare = append(pt.Compare, toComparePart(c))
+		}
+		return writePart(e, so, pt)
+	}
+	return reportComparisons(e, names, comps, outputs{json: *asJSON, plot: *plot, format: plotFormat, trace: *trace})
+}
+
+// reportComparisons writes the tables or JSON, the profiles, the trace and
+// the plots of whole comparisons (run here or merged from parts).
+func reportComparisons(e *env, names []string, comps []*diag.Comparison, o outputs) error {
 	var byEvals, bySecs *diag.Profile
 	if len(comps) > 1 {
+		var err error
 		if byEvals, bySecs, err = diag.Profiles(comps); err != nil {
 			return err
 		}
 	}
-
-	if *asJSON {
+	if o.json {
 		if err := writeCompareJSON(e.stdout, names, comps); err != nil {
 			return err
 		}
@@ -202,29 +248,29 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 			writeProfileTable(e.stdout, "seconds to target", bySecs)
 		}
 	}
-	if *trace != "" {
-		if err := writeAtomic(*trace, func(w io.Writer) error { return writeTrace(w, names, comps) }); err != nil {
-			return fmt.Errorf("-trace %s: %w", *trace, err)
+	if o.trace != "" {
+		if err := writeAtomic(o.trace, func(w io.Writer) error { return writeTrace(w, names, comps) }); err != nil {
+			return fmt.Errorf("-trace %s: %w", o.trace, err)
 		}
 	}
-	if *plot != "" {
+	if o.plot != "" {
 		if byEvals == nil {
 			cp := costPlot(names[0], comps[0])
-			if err := writeAtomic(*plot, func(w io.Writer) error { return cp.Write(w, plotFormat) }); err != nil {
-				return fmt.Errorf("-plot %s: %w", *plot, err)
+			if err := writeAtomic(o.plot, func(w io.Writer) error { return cp.Write(w, o.format) }); err != nil {
+				return fmt.Errorf("-plot %s: %w", o.plot, err)
 			}
 		} else {
-			timePath := suffixed(*plot, "-time")
+			timePath := suffixed(o.plot, "-time")
 			for _, pp := range []struct {
 				path, xlabel string
 				p            *diag.Profile
 			}{
-				{*plot, "within a factor τ of the fewest evaluations to target", byEvals},
+				{o.plot, "within a factor τ of the fewest evaluations to target", byEvals},
 				{timePath, "within a factor τ of the least wall time to target", bySecs},
 			} {
 				title := fmt.Sprintf("performance profile over %d problems × %d seeds", len(comps), len(comps[0].Seeds))
 				err := writeAtomic(pp.path, func(w io.Writer) error {
-					return chart.ProfilePlot(w, plotFormat, title, pp.xlabel, pp.p.Solvers, pp.p.Taus, pp.p.Rho)
+					return chart.ProfilePlot(w, o.format, title, pp.xlabel, pp.p.Solvers, pp.p.Taus, pp.p.Rho)
 				})
 				if err != nil {
 					return fmt.Errorf("-plot %s: %w", pp.path, err)

@@ -9,6 +9,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // Image sizes of internal/chart: Width 16 cm (28 cm for the two-panel cost
@@ -150,4 +153,17 @@ func TestCompareUsage(t *testing.T) {
 			oneLineError(t, r.stderr, tt.want)
 		})
 	}
+}
+
+// TestCompareProgress: a plain line per finished run naming the method and
+// seed, and the problem when there are several; none with -quiet.
+func TestCompareProgress(t *testing.T) {
+	r := seine(t, "compare", "-spec", binarySpec, "-data", binaryData, "-spec", tagsSpec, "-data", tagsData,
+		"-optimizers", "gd,lbfgs", "-seeds", "2", "-seed", "5", "-iterations", "2")
+	require.Equal(t, 0, r.code, r.stderr)
+	assert.Contains(t, r.stderr, "compare: fit 1/4 (problem 1/2: gd, seed 5) done: ")
+	assert.Contains(t, r.stderr, "compare: fit 4/4 (problem 2/2: lbfgs, seed 6) done: ")
+	r = seine(t, "compare", "-spec", binarySpec, "-data", binaryData, "-optimizers", "gd", "-iterations", "2", "-quiet")
+	require.Equal(t, 0, r.code, r.stderr)
+	assert.NotContains(t, r.stderr, "fit 1/1")
 }

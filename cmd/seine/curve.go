@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
 	"strconv"
 
 	"github.com/seine-ml/seine/diag"
@@ -31,7 +32,12 @@ close suggests high bias (a larger net or a smaller penalty may help).
 "High" is judged against the baseline, the holdout cost of always
 answering the class shares. -json writes one object: holdout_rows,
 baseline, shape, hint and points (rows, train_cost, holdout_cost,
-train_accuracy, holdout_accuracy).
+train_accuracy, holdout_accuracy) and warnings.
+
+Progress goes to standard error, a line per finished fit (a line redrawn
+in place on a terminal); -quiet leaves it out. -shard K/N runs only the
+sizes i (0-based) with i mod N = K and writes them as JSON, to -out FILE or
+standard output; seine merge puts the N parts back together.
 `
 
 func runCurve(ctx context.Context, e *env, args []string) error {
@@ -47,6 +53,8 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	specPenalty := fs.Bool("spec-penalty", false, "train every subset with the spec's λ as written")
 	asJSON := fs.Bool("json", false, "write the curve as one JSON object")
 	plot := fs.String("plot", "", "draw the curve to `FILE`.png or .svg")
+	quiet := fs.Bool("quiet", false, "no progress on standard error")
+	so := addShardFlags(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -66,6 +74,9 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := so.check(os.Getenv, *plot, "", "spec", *specPath, "data", *dataPath); err != nil {
+		return err
+	}
 	s, err := loadSpec(ctx, *specPath)
 	if err != nil {
 		return err
@@ -74,33 +85,51 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	pr := progressFor(e, *quiet, "curve", func(f diag.FitDone) string { return fmt.Sprintf("%d rows", f.Rows) })
 	c, err := diag.LearningCurve(ctx, s, set, diag.CurveConfig{
 		Steps: *steps, Holdout: *holdout, Seed: *seed, NoScale: !*standardize, SpecPenalty: *specPenalty,
-		Limits: optim.Limits{Iterations: *iterations},
+		Limits: optim.Limits{Iterations: *iterations}, Shard: so.shard, Progress: pr.fit,
 	})
+	pr.done()
 	if err != nil {
 		return err
 	}
+	name := problemName(s, *dataPath)
+	if so.on() {
+		for _, w := range c.Warnings {
+			fmt.Fprintf(e.stderr, "curve: warning: %s\n", w)
+		}
+		pp, err := describeProblem(ctx, name, s, *dataPath, set.Rows())
+		if err != nil {
+			return err
+		}
+		return writePart(e, so, &part{Command: "curve", Problems: []partProblem{pp}, Settings: settingsOf(fs), Curve: toCurvePart(c)})
+	}
+	return reportCurve(e, name, c, *specPenalty, outputs{json: *asJSON, plot: *plot, format: format})
+}
+
+// reportCurve writes the warnings, the table or JSON and the plot of a
+// whole learning curve (run here or merged from parts).
+func reportCurve(e *env, name string, c *diag.Curve, specPenalty bool, o outputs) error {
 	for _, w := range c.Warnings {
 		fmt.Fprintf(e.stderr, "curve: warning: %s\n", w)
 	}
-	name := problemName(s, *dataPath)
-	if *asJSON {
+	if o.json {
 		if err := writeCurveJSON(e.stdout, c); err != nil {
 			return err
 		}
 	} else {
-		writeCurveTable(e.stdout, name, c, *specPenalty)
+		writeCurveTable(e.stdout, name, c, specPenalty)
 	}
-	if *plot != "" {
+	if o.plot != "" {
 		cp := chart.CurvePlot{Title: name}
 		for _, p := range c.Points {
 			cp.Rows = append(cp.Rows, float64(p.Rows))
 			cp.Train = append(cp.Train, p.TrainCost)
 			cp.Holdout = append(cp.Holdout, p.HoldoutCost)
 		}
-		if err := writeAtomic(*plot, func(w io.Writer) error { return cp.Write(w, format) }); err != nil {
-			return fmt.Errorf("-plot %s: %w", *plot, err)
+		if err := writeAtomic(o.plot, func(w io.Writer) error { return cp.Write(w, o.format) }); err != nil {
+			return fmt.Errorf("-plot %s: %w", o.plot, err)
 		}
 	}
 	return nil
@@ -150,7 +179,9 @@ func writeCurveJSON(w io.Writer, c *diag.Curve) error {
 		Shape       string           `json:"shape"`
 		Hint        string           `json:"hint"`
 		Points      []curvePointJSON `json:"points"`
-	}{HoldoutRows: c.HoldoutRows, Baseline: jsonNum(c.Baseline), Shape: shapeName(c.Shape), Hint: c.Shape.String()}
+		Warnings    []string         `json:"warnings"`
+	}{HoldoutRows: c.HoldoutRows, Baseline: jsonNum(c.Baseline), Shape: shapeName(c.Shape), Hint: c.Shape.String(),
+		Warnings: append([]string{}, c.Warnings...)}
 	for _, p := range c.Points {
 		out.Points = append(out.Points, curvePointJSON{p.Rows, jsonNum(p.TrainCost), jsonNum(p.HoldoutCost), jsonNum(p.TrainAccuracy), jsonNum(p.HoldoutAccuracy)})
 	}

@@ -5,6 +5,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 func TestCurveCommand(t *testing.T) {
@@ -55,4 +58,18 @@ func TestCurveUsage(t *testing.T) {
 		}
 		oneLineError(t, r.stderr, tt.want)
 	}
+}
+
+// TestCurveProgress: a plain line per finished fit naming its rows on
+// standard error (a pipe here); none with -quiet.
+func TestCurveProgress(t *testing.T) {
+	r := seine(t, "curve", "-spec", binarySpec, "-data", binaryData, "-steps", "2", "-iterations", "2")
+	require.Equal(t, 0, r.code, r.stderr)
+	// 60 rows, holdout 0.25: 45 training rows, sizes round(45/2) = 23
+	// (math.Round rounds half away from zero) and 45.
+	assert.Contains(t, r.stderr, "curve: fit 1/2 (23 rows) done: ")
+	assert.Contains(t, r.stderr, "curve: fit 2/2 (45 rows) done: ")
+	r = seine(t, "curve", "-spec", binarySpec, "-data", binaryData, "-steps", "2", "-iterations", "2", "-quiet")
+	require.Equal(t, 0, r.code, r.stderr)
+	assert.NotContains(t, r.stderr, "fit 1/2")
 }

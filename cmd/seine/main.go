@@ -72,6 +72,7 @@ func commandList() []*command {
 		{name: "compare", help: compareHelp, args: "-spec FILE -data FILE -optimizers LIST [flags]", summary: "compare optimizers on the same objective from the same start", run: runCompare},
 		{name: "sweep", help: sweepHelp, args: "-spec FILE -data FILE -l2 LIST [flags]", summary: "train at several penalty strengths and compare validation cost", run: runSweep},
 		{name: "curve", help: curveHelp, args: "-spec FILE -data FILE [-steps N] [flags]", summary: "learning curve: cost against the number of training rows", run: runCurve},
+		{name: "merge", help: mergeHelp, args: "[-json] [-plot FILE] [-trace FILE] PART...", summary: "put the parts of a sharded sweep, compare or curve back together", run: runMerge},
 		{name: "report", help: reportHelp, args: "-model FILE -data FILE -out FILE [-repeats N] [-seed S]", summary: "write one self-contained HTML page about a model on labelled data", run: runReport},
 		{name: "version", help: versionHelp, args: "", summary: "print the version, Go version, platform and matrix backend", run: runVersion},
 		{name: "completion", help: completionHelp, args: "bash|zsh|fish", summary: "print a shell completion script made from the command table", run: runCompletion},

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -31,7 +33,17 @@ fold range as error bars; with -units as well, the units sweep goes to FILE
 with "-units" before the extension. -json writes an array with one object
 per sweep: param ("l2" or "units"), folds, holdout, best (index), best_value,
 points (l2, units, train_cost, valid_cost, train_accuracy,
-valid_accuracy, each {mean, sd, min, max}).
+valid_accuracy, each {mean, sd, min, max}) and warnings.
+
+A warning names a best value at the edge of the grid, the lowest λ or unit
+count (unless 0 or 1) or the highest: the optimum may lie beyond it, so
+extend the list. Progress goes to standard error, a line per finished fit
+(a line redrawn in place on a terminal); -quiet leaves it out.
+
+-shard K/N runs only the fits i (value × fold, see seine help merge) with
+i mod N = K and writes them as JSON, to -out FILE or standard output;
+seine merge puts the N parts back together. -shard takes -l2 or -units,
+not both, since the units sweep runs at the best λ of the whole -l2 sweep.
 `
 
 func runSweep(ctx context.Context, e *env, args []string) error {
@@ -48,6 +60,8 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	standardize := fs.Bool("standardize", true, "centre and scale each feature on the training rows (as seine train does)")
 	asJSON := fs.Bool("json", false, "write the sweeps as a JSON array")
 	plot := fs.String("plot", "", "draw cost against λ to `FILE`.png or .svg")
+	quiet := fs.Bool("quiet", false, "no progress on standard error")
+	so := addShardFlags(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -87,6 +101,12 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := so.check(os.Getenv, *plot, "", "spec", *specPath, "data", *dataPath); err != nil {
+		return err
+	}
+	if so.on() && len(lambdas) > 0 && len(units) > 0 {
+		return usagef("-shard: give -l2 or -units, not both (the units sweep runs at the best λ, known only once the -l2 sweep is merged)")
+	}
 	s, err := loadSpec(ctx, *specPath)
 	if err != nil {
 		return err
@@ -100,12 +120,15 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	}
 	cfg := diag.SweepConfig{
 		Folds: *folds, Holdout: *holdout, Seed: *seed, NoScale: !*standardize,
-		Limits: optim.Limits{Iterations: *iterations},
+		Limits: optim.Limits{Iterations: *iterations}, Shard: so.shard,
 	}
 	name := problemName(s, *dataPath)
 	var sweeps []*diag.Sweep
 	if len(lambdas) > 0 {
+		pr := progressFor(e, *quiet, "sweep", func(f diag.FitDone) string { return fitLabel("λ = "+strconv.FormatFloat(f.Lambda, 'g', -1, 64), f) })
+		cfg.Progress = pr.fit
 		sw, err := diag.SweepPenalty(ctx, s, set, lambdas, cfg)
+		pr.done()
 		if err != nil {
 			return err
 		}
@@ -117,20 +140,61 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 			su = s.Clone()
 			su.Penalty.L2 = sweeps[0].Points[sweeps[0].Best].Lambda
 		}
+		pr := progressFor(e, *quiet, "sweep", func(f diag.FitDone) string { return fitLabel(fmt.Sprintf("%d units", f.Units), f) })
+		cfg.Progress = pr.fit
 		sw, err := diag.SweepUnits(ctx, su, set, units, cfg)
+		pr.done()
 		if err != nil {
 			return err
 		}
 		sweeps = append(sweeps, sw)
 	}
-	for _, sw := range sweeps {
-		for _, w := range sw.Warnings {
+	if so.on() {
+		for _, w := range sweeps[0].Warnings {
+			fmt.Fprintf(e.stderr, "sweep: warning: %s\n", w)
+		}
+		pp, err := describeProblem(ctx, name, s, *dataPath, set.Rows())
+		if err != nil {
+			return err
+		}
+		settings := settingsOf(fs)
+		settings["l2"], settings["units"] = floatList(lambdas), intList(units)
+		return writePart(e, so, &part{Command: "sweep", Problems: []partProblem{pp}, Settings: settings, Sweep: toSweepPart(sweeps[0])})
+	}
+	return reportSweeps(e, name, set.Rows(), sweeps, outputs{json: *asJSON, plot: *plot, format: format})
+}
+
+// fitLabel names a sweep's fit: its value and, with folds, the fold.
+func fitLabel(value string, f diag.FitDone) string {
+	if f.Folds > 1 {
+		return fmt.Sprintf("%s, fold %d/%d", value, f.Fold+1, f.Folds)
+	}
+	return value
+}
+
+// outputs are what a sweep, comparison or curve writes besides its table.
+type outputs struct {
+	json   bool
+	plot   string
+	format chart.Format
+	trace  string // compare only
+}
+
+// reportSweeps writes the warnings, the table or JSON and the plots of
+// whole sweeps (run here or merged from parts).
+func reportSweeps(e *env, name string, rows int, sweeps []*diag.Sweep, o outputs) error {
+	warnings := make([][]string, len(sweeps))
+	for i, sw := range sweeps {
+		warnings[i] = slices.Clone(sw.Warnings)
+		if w := edgeWarning(sw); w != "" {
+			warnings[i] = append(warnings[i], w)
+		}
+		for _, w := range warnings[i] {
 			fmt.Fprintf(e.stderr, "sweep: warning: %s\n", w)
 		}
 	}
-
-	if *asJSON {
-		if err := writeSweepJSON(e.stdout, sweeps); err != nil {
+	if o.json {
+		if err := writeSweepJSON(e.stdout, sweeps, warnings); err != nil {
 			return err
 		}
 	} else {
@@ -138,22 +202,49 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 			if i > 0 {
 				fmt.Fprintln(e.stdout)
 			}
-			writeSweepTable(e.stdout, name, set.Rows(), sw)
+			writeSweepTable(e.stdout, name, rows, sw)
 		}
 	}
-	if *plot != "" {
+	if o.plot != "" {
 		for i, sw := range sweeps {
-			path := *plot
+			path := o.plot
 			if i > 0 {
-				path = suffixed(*plot, "-units")
+				path = suffixed(o.plot, "-units")
 			}
 			sp := sweepPlot(name, sw)
-			if err := writeAtomic(path, func(w io.Writer) error { return sp.Write(w, format) }); err != nil {
+			if err := writeAtomic(path, func(w io.Writer) error { return sp.Write(w, o.format) }); err != nil {
 				return fmt.Errorf("-plot %s: %w", path, err)
 			}
 		}
 	}
 	return nil
+}
+
+// edgeWarning says when the best value of a sweep is the lowest or the
+// highest of its grid, so that the optimum may lie beyond it; not at a
+// lower end that cannot be extended (λ = 0, one unit).
+func edgeWarning(sw *diag.Sweep) string {
+	if len(sw.Points) < 2 {
+		return ""
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, p := range sw.Points {
+		x := sweepX(sw, p)
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+	}
+	best := sweepX(sw, sw.Points[sw.Best])
+	what, flagName, floor := "λ", "-l2", 0.0
+	if sw.Param == diag.HiddenUnits {
+		what, flagName, floor = "units", "-units", 1
+	}
+	text := strconv.FormatFloat(best, 'g', -1, 64)
+	switch {
+	case best == hi:
+		return fmt.Sprintf("the lowest validation cost is at %s = %s, the highest value of the grid; the best may lie above it: extend %s", what, text, flagName)
+	case best == lo && best > floor:
+		return fmt.Sprintf("the lowest validation cost is at %s = %s, the lowest value of the grid; the best may lie below it: extend %s", what, text, flagName)
+	}
+	return ""
 }
 
 // parseFloats reads a comma-separated list of numbers; "" gives nil.
@@ -267,12 +358,14 @@ type sweepJSON struct {
 	Best      int              `json:"best"`
 	BestValue float64          `json:"best_value"`
 	Points    []sweepPointJSON `json:"points"`
+	Warnings  []string         `json:"warnings"`
 }
 
-func writeSweepJSON(w io.Writer, sweeps []*diag.Sweep) error {
+func writeSweepJSON(w io.Writer, sweeps []*diag.Sweep, warnings [][]string) error {
 	out := []sweepJSON{}
-	for _, sw := range sweeps {
-		sj := sweepJSON{Param: sw.Param.String(), Folds: sw.Folds, Holdout: sw.Holdout, Best: sw.Best, BestValue: sweepX(sw, sw.Points[sw.Best])}
+	for i, sw := range sweeps {
+		sj := sweepJSON{Param: sw.Param.String(), Folds: sw.Folds, Holdout: sw.Holdout, Best: sw.Best, BestValue: sweepX(sw, sw.Points[sw.Best]),
+			Warnings: append([]string{}, warnings[i]...)}
 		for _, p := range sw.Points {
 			sj.Points = append(sj.Points, sweepPointJSON{
 				L2: p.Lambda, Units: p.Units,

@@ -1,0 +1,108 @@
+package diag
+
+import (
+	"fmt"
+	"time"
+)
+
+// Shard selects one of N parts of a sweep, comparison or learning curve,
+// so that a job runner can spread the fits over N processes. Every run
+// enumerates its fits in one fixed order, documented with each function
+// (SweepPenalty: value × fold; Compare: seed × method; LearningCurve:
+// size), and shard K of N runs the fits whose index i in that order has
+// i mod N = K. Each fit is deterministic from its own seed and rows, so
+// the fits of the N shards, merged (MergeSweeps, MergeComparisons,
+// MergeCurves), give the whole run's result bit for bit, wall times
+// aside.
+//
+// The zero value (N = 0) means the whole run, not a part. N = 1 is a part
+// that holds every fit.
+type Shard struct {
+	K, N int
+}
+
+// String returns "K/N".
+func (s Shard) String() string { return fmt.Sprintf("%d/%d", s.K, s.N) }
+
+// Whole reports whether s is the zero value: the whole run, not a part.
+func (s Shard) Whole() bool { return s == Shard{} }
+
+func (s Shard) check() error {
+	if s.Whole() {
+		return nil
+	}
+	if s.N < 1 || s.K < 0 || s.K >= s.N {
+		return fmt.Errorf("%w: Shard %d/%d, want 0 ≤ K < N (or 0/0 for the whole run)", ErrConfig, s.K, s.N)
+	}
+	return nil
+}
+
+// has reports whether fit i belongs to s.
+func (s Shard) has(i int) bool { return s.N == 0 || i%s.N == s.K }
+
+// Count returns how many of the size fits of a run belong to s.
+func (s Shard) Count(size int) int {
+	switch {
+	case s.N == 0:
+		return size
+	case s.K >= size:
+		return 0
+	}
+	return (size-1-s.K)/s.N + 1
+}
+
+// FitDone reports one finished fit of a sweep, comparison or learning
+// curve to the Progress callback of its config. It is called on the
+// goroutine of the run, after the fit and before the next one starts; a
+// slow callback slows the run but changes none of its figures.
+type FitDone struct {
+	// Index is the fit's place in the run's order (see Shard); Done the
+	// number of fits this run (or shard) has finished, this one included,
+	// and Total the number it will run: Done = Total at the last one.
+	Index, Done, Total int
+	// Lambda is the penalty strength λ (penalty.l2) the fit trained with,
+	// and Units the units of its first hidden layer (0 without one);
+	// sweeps and curves.
+	Lambda float64
+	Units  int
+	// Fold is the 0-based fold validated on, of Folds (a sweep; Folds is
+	// 1 with a holdout, 0 elsewhere).
+	Fold, Folds int
+	// Method and Seed name a comparison's run.
+	Method string
+	Seed   uint64
+	// Rows is the number of rows the fit trained on.
+	Rows int
+	// Elapsed is the wall time since the run started.
+	Elapsed time.Duration
+}
+
+// checkShards checks that parts, one per shard of the same N, hold each
+// shard 0 … N−1 exactly once; n(i) returns part i's Shard.
+func checkShards(count int, n func(i int) Shard) error {
+	if count == 0 {
+		return fmt.Errorf("%w: no parts to merge", ErrConfig)
+	}
+	N := n(0).N
+	seen := make([]int, N)
+	for i := range count {
+		s := n(i)
+		switch {
+		case s.Whole():
+			return fmt.Errorf("%w: part %d is a whole run, not a shard", ErrConfig, i)
+		case s.N != N:
+			return fmt.Errorf("%w: part %d is shard %s, part 0 is one of %d", ErrConfig, i, s, N)
+		case s.check() != nil:
+			return fmt.Errorf("%w: part %d: shard %s, want 0 ≤ K < N", ErrConfig, i, s)
+		case seen[s.K] > 0:
+			return fmt.Errorf("%w: part %d is shard %s, as is part %d", ErrConfig, i, s, seen[s.K]-1)
+		}
+		seen[s.K] = i + 1
+	}
+	for k, p := range seen {
+		if p == 0 {
+			return fmt.Errorf("%w: shard %d/%d is missing", ErrConfig, k, N)
+		}
+	}
+	return nil
+}
