@@ -71,6 +71,7 @@ type problemPaths struct{ spec, data string }
 
 func runCompare(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("compare", e)
+	comma := commaFlag(fs)
 	var specs, datas multiFlag
 	fs.Var(&specs, "spec", "spec `FILE` (YAML); repeat with -data for several problems")
 	fs.Var(&datas, "data", "labelled CSV `FILE`; one per -spec, in the same order")
@@ -172,7 +173,7 @@ func runCompare(ctx context.Context, e *env, args []string) error {
 		if err != nil {
 			return err
 		}
-		set, err := loadData(ctx, p.data, dataFor(s, *label))
+		set, err := loadData(ctx, p.data, withComma(dataFor(s, *label), comma))
 		if err != nil {
 			return err
 		}

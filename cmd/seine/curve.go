@@ -42,6 +42,7 @@ standard output; seine merge puts the N parts back together.
 
 func runCurve(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("curve", e)
+	comma := commaFlag(fs)
 	specPath := fs.String("spec", "", "spec `FILE` (YAML)")
 	dataPath := fs.String("data", "", "labelled CSV `FILE`")
 	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
@@ -81,7 +82,7 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	set, err := loadData(ctx, *dataPath, dataFor(s, *label))
+	set, err := loadData(ctx, *dataPath, withComma(dataFor(s, *label), comma))
 	if err != nil {
 		return err
 	}

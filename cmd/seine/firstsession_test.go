@@ -87,6 +87,10 @@ func TestFirstSession(t *testing.T) {
 	code, out, errs = run("sweep", "-spec", "examples/triage/triage.yaml", "-data", "examples/triage/sessions.csv", "-l2", "0.01,0.1", "-iterations", "20", "-folds", "2")
 	require.Equal(t, 0, code, errs)
 	assert.NotEmpty(t, out)
+	// A plain line per finished fit (2 values × 2 folds), and a warning:
+	// the best λ of so short a run sits at an edge of this grid.
+	assert.Regexp(t, regexp.MustCompile(`(?m)^sweep: fit 4/4 \(λ = [0-9.]+, fold 2/2\) done: [0-9.]+s`), errs)
+	assert.Contains(t, errs, "extend -l2")
 
 	// A class with too few rows: a warning, and the run still succeeds.
 	few := "req_per_min,agent_family,error_share,distinct_paths,asset_share,login_attempts,login_fail_share,interval_cv,session_min,night_share,robots_fetched,referer_share,header_count,resp_kb,head_share,path_depth,revisit_share,kind\n"

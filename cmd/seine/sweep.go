@@ -48,6 +48,7 @@ not both, since the units sweep runs at the best λ of the whole -l2 sweep.
 
 func runSweep(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("sweep", e)
+	comma := commaFlag(fs)
 	specPath := fs.String("spec", "", "spec `FILE` (YAML)")
 	dataPath := fs.String("data", "", "labelled CSV `FILE`")
 	label := fs.String("label", "", "name of the label `COLUMN` (default the last column)")
@@ -114,7 +115,7 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	if len(units) > 0 && len(s.Hidden) == 0 {
 		return usagef("-units: %s has no hidden layer whose units could vary", *specPath)
 	}
-	set, err := loadData(ctx, *dataPath, dataFor(s, *label))
+	set, err := loadData(ctx, *dataPath, withComma(dataFor(s, *label), comma))
 	if err != nil {
 		return err
 	}
