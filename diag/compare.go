@@ -236,6 +236,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if err != nil {
 		return nil, err
 	}
+	defer p.close()
 	net := p.net
 	seeds := make([]uint64, cfg.Seeds)
 	for k := range seeds {
@@ -455,6 +456,15 @@ type problem struct {
 	hold    *train.Scorer // nil without a holdout
 	grad    []float64
 	warn    []string
+}
+
+// close stops the goroutines of p's objectives.
+func (p *problem) close() {
+	p.full.Close()
+	p.batched.Close()
+	if p.hold != nil {
+		p.hold.Close()
+	}
 }
 
 func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batch, workers int) (*problem, error) {

@@ -420,6 +420,7 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 			return fitted{}, err
 		}
 		*part.cost, *part.acc = scr.Measure(m.Params)
+		scr.Close()
 	}
 	return out, nil
 }

@@ -157,6 +157,16 @@ func NewObjective(n *Net, x, y *mat.Dense, opt ObjectiveOptions) (*Objective, er
 	return o, nil
 }
 
+// Close stops the goroutines that evaluate o's chunks. An Objective must not
+// be used after Close; Close may be called more than once. An Objective
+// that is never closed stops them when it is garbage-collected, but owners
+// should close it when done (train.Train and the diagnostics do), so that
+// no goroutine outlives its use.
+func (o *Objective) Close() error {
+	o.eng.stop()
+	return nil
+}
+
 // checkValues reports the first non-finite value of a, or with target the
 // first value outside [0, 1].
 func checkValues(name string, a *mat.Dense, target bool) error {
@@ -334,12 +344,13 @@ func (o *Objective) penalty(grad, params []float64) float64 {
 // worker waits for another unless all slots are taken: there are two per
 // worker.
 type engine struct {
-	net     *Net
-	works   []*work
-	acc     []float64 // Σ over chunks, in chunk order, of the chunk gradients
-	wake    []chan struct{}
-	wg      sync.WaitGroup
-	started bool
+	net      *Net
+	works    []*work
+	acc      []float64 // Σ over chunks, in chunk order, of the chunk gradients
+	wake     []chan struct{}
+	stopOnce sync.Once
+	wg       sync.WaitGroup
+	started  bool
 
 	// The run in progress, set by run before it wakes the workers. The
 	// fields below mu are guarded by it; loss and acc are written only by
@@ -395,11 +406,13 @@ func (e *engine) start() {
 }
 
 func (e *engine) stop() {
-	if e.started {
-		for _, ch := range e.wake[1:] {
-			close(ch)
+	e.stopOnce.Do(func() {
+		if e.started {
+			for _, ch := range e.wake[1:] {
+				close(ch)
+			}
 		}
-	}
+	})
 }
 
 // work evaluates chunks on w until none is left. At most len(parked)

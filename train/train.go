@@ -209,11 +209,13 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if err != nil {
 		return nil, fmt.Errorf("train: training rows: %w", err)
 	}
+	defer obj.Close()
 	var hold *Scorer
 	if cfg.Holdout != nil {
 		if hold, err = NewScorer(net, hx, cfg.Holdout, cfg.Workers); err != nil {
 			return nil, fmt.Errorf("train: holdout rows: %w", err)
 		}
+		defer hold.Close()
 	}
 
 	x0 := cfg.Start
@@ -293,6 +295,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	if err != nil {
 		return nil, fmt.Errorf("train: training rows: %w", err)
 	}
+	defer ts.Close()
 	model.Summary.TrainAccuracy = ts.accuracy(params)
 	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
 	noDecision(model)
@@ -399,6 +402,10 @@ func NewScorer(net *nn.Net, x *mat.Dense, set *data.Set, workers int) (*Scorer, 
 	}
 	return &Scorer{net: net, obj: obj, x: x, set: set, ws: net.NewWorkspace(set.Rows())}, nil
 }
+
+// Close stops the goroutines of the Scorer's evaluations; it must not be
+// used after.
+func (s *Scorer) Close() error { return s.obj.Close() }
 
 // Measure returns the mean cross-entropy (no penalty) and the share of rows
 // classified right (exact-set match at 0.5 for multi-label rows) of params.
