@@ -7,9 +7,11 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -416,4 +418,32 @@ func TestSaveRefusesUnloadable(t *testing.T) {
 	assert.Contains(t, err.Error(), "would not load")
 	b, _ := os.ReadFile(path)
 	assert.Equal(t, "the old model", string(b))
+}
+
+// oneByte is a stream of one byte, forever.
+type oneByte byte
+
+func (e oneByte) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = byte(e)
+	}
+	return len(p), nil
+}
+
+// A refused stream costs at most the limit plus one piece of reading
+// (issue 13): a model file that starts well and never ends is read in
+// 4 MiB pieces up to the limit, then refused. Measured by the bytes
+// allocated (runtime.MemStats.TotalAlloc), with 1 MiB for the rest.
+func TestRefusedStreamMemory(t *testing.T) {
+	const limit = 32 << 20
+	r := io.MultiReader(strings.NewReader(`{"format": "`), oneByte('a'))
+	var a, b runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&a)
+	_, err := ReadModelLimit(r, limit)
+	runtime.ReadMemStats(&b)
+	require.ErrorIs(t, err, ErrTooLarge)
+	alloc := b.TotalAlloc - a.TotalAlloc
+	t.Logf("refusing a stream at %d MiB allocated %.1f MiB", limit>>20, float64(alloc)/(1<<20))
+	assert.LessOrEqual(t, alloc, uint64(limit+readChunk+1<<20))
 }

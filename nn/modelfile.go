@@ -125,9 +125,9 @@ type fileScaler struct {
 }
 
 type fileParams struct {
-	Count    int    `json:"count"`
-	Encoding string `json:"encoding"`
-	Data     []byte `json:"data"` // base64 in the file (encoding/json's form of []byte)
+	Count    int       `json:"count"`
+	Encoding string    `json:"encoding"`
+	Data     paramData `json:"data"` // base64 of little-endian float64s
 }
 
 // hasher writes the digest's fixed binary form.
@@ -360,7 +360,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	f := fileModel{
 		Format: FormatName, Version: FormatVersion, Spec: y.String(),
 		Classes: m.Classes, Label: &label, Encoder: toFileEncoder(m.enc),
-		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: raw},
+		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: paramData{raw: raw}},
 	}
 	if !m.Decision.IsZero() {
 		d := m.Decision
@@ -429,7 +429,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if p.Encoding != paramEncoding {
 		return nil, fmt.Errorf("%w: params encoding %q, want %q", ErrFormat, p.Encoding, paramEncoding)
 	}
-	raw := p.Data // base64-decoded by Unmarshal
+	raw := p.Data.raw // base64-decoded by Unmarshal, straight into the params' memory
 	var enc *encode.Encoder
 	label := ""
 	switch f.Version {
@@ -465,10 +465,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 	if len(raw) != 8*p.Count {
 		return nil, fmt.Errorf("%w: params data holds %d bytes, count %d needs %d", ErrModel, len(raw), p.Count, 8*p.Count)
 	}
-	params := make([]float64, p.Count)
-	for i := range params {
-		params[i] = math.Float64frombits(binary.LittleEndian.Uint64(raw[8*i:]))
-	}
+	params := p.Data.v
 	if f.Version == 1 {
 		if enc, err = v1Encoder(s, f.Features, f.Scaler); err != nil {
 			return nil, err
@@ -561,6 +558,25 @@ const readChunk = 4 << 20
 // not start like a JSON object (after white space) is refused at its first
 // byte, so reading /dev/zero or random bytes costs nothing.
 func readBounded(r io.Reader, max int64) ([]byte, error) {
+	// A regular file (an *os.File, or a reader that can Stat its file)
+	// has a known size: read it into one buffer of that size.
+	if st, ok := r.(interface{ Stat() (fs.FileInfo, error) }); ok {
+		if fi, err := st.Stat(); err == nil && fi.Mode().IsRegular() && fi.Size() <= max {
+			b := make([]byte, fi.Size()+1) // one more, to see a file that grew
+			k, err := io.ReadFull(r, b)
+			switch {
+			case err == io.ErrUnexpectedEOF || err == io.EOF:
+				b = b[:k]
+				if i := bytes.IndexFunc(b, func(c rune) bool { return !isSpace(byte(c)) }); i >= 0 && b[i] != '{' {
+					return nil, fmt.Errorf("%w: line %d: the document is not a JSON object (byte %d is %q)", ErrFormat, 1+bytes.Count(b[:i], []byte{'\n'}), i, b[i])
+				}
+				return b, nil
+			case err != nil:
+				return nil, fmt.Errorf("nn: reading model: %w", err)
+			}
+			return nil, fmt.Errorf("%w: the file grew while it was read, past %d bytes", ErrTooLarge, fi.Size())
+		}
+	}
 	var pieces [][]byte
 	var n int64
 	started := false

@@ -107,6 +107,7 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 		name = "seine"
 	}
 	b := newGraph(name)
+	b.shapeOnly = !full
 
 	// Fixed names first, so that no internal tensor can take them.
 	inputs := enc.Inputs()

@@ -24,6 +24,9 @@ type graph struct {
 	names   map[string]bool   // every tensor name in use
 	count   map[string]int    // per base name: how many were made
 	scalars map[uint64]string // float64 scalar initializers by value bits
+	// shapeOnly leaves initializers' values out: Check builds the graph to
+	// find what cannot be exported without copying the params.
+	shapeOnly bool
 }
 
 func newGraph(name string) *graph {
@@ -85,9 +88,12 @@ func (b *graph) nodeTo(op, out string, inputs []string, attrs ...*pb.AttributePr
 // IEEE 754 binary64, so they are stored bit for bit.
 func (b *graph) doubles(base string, dims []int64, v []float64) string {
 	name := b.fresh(base)
-	raw := make([]byte, 8*len(v))
-	for i, x := range v {
-		binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(x))
+	var raw []byte
+	if !b.shapeOnly {
+		raw = make([]byte, 8*len(v))
+		for i, x := range v {
+			binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(x))
+		}
 	}
 	b.g.Initializer = append(b.g.Initializer, &pb.TensorProto{
 		Name: proto.String(name), Dims: dims, DataType: proto.Int32(tDouble), RawData: raw,

@@ -44,6 +44,10 @@ func (r *Reader) Read(p []byte) (int, error) {
 	return n, err
 }
 
+// Stat returns the file's FileInfo, so that a reader that knows the size
+// of a regular file can read it into one buffer.
+func (r *Reader) Stat() (os.FileInfo, error) { return r.f.Stat() }
+
 // Close releases the context's hook; the file stays open.
 func (r *Reader) Close() error {
 	r.stop()
