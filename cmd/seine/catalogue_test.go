@@ -197,6 +197,10 @@ func TestCatalogue(t *testing.T) {
 		{"spec empty", "train", bad("spec_empty.yaml"), nil, 1, []string{"{file}: empty spec"}},
 		// A spec that trains into divergence: the model the user had stays.
 		{"spec diverges", "train", bad("spec_diverges.yaml"), nil, 1, []string{"diverged", "was not written"}},
+		// Issue 13: a null value points at the value, not at 1:1; an alias
+		// bomb is refused at the alias that passes the size limit.
+		{"spec null inputs", "train", bad("spec_null_inputs.yaml"), nil, 1, []string{"{file}:3:9: inputs:", "no value"}},
+		{"spec alias bomb", "train", bad("spec_alias_bomb.yaml"), nil, 1, []string{"{file}:11:20:", "aliases expand the spec"}},
 
 		// CSV read as RFC 4180 says: a BOM is skipped, CRLF ends a record
 		// like LF (RFC 4180 §2.1 uses CRLF), and a quoted field may hold
@@ -216,6 +220,7 @@ func TestCatalogue(t *testing.T) {
 		{"csv unknown class", "train", bad("csv_unknown_class.csv"), nil, 1, []string{"{file}: line 5 (row 4), column \"species\"", `"setosa-ish"`}},
 		// RFC 4180 §2.5: a field that starts with a quote ends at a quote.
 		{"csv bare quote", "train", bad("csv_bare_quote.csv"), nil, 1, []string{"{file}: line 31 (row 3)", "starts on line 4", "RFC 4180"}},
+		{"csv CR-only line ends", "train", bad("csv_cr_only.csv"), nil, 1, []string{"{file}: line 1", "carriage return (CR) alone"}},
 		{"csv NaN, evaluate", "evaluate", bad("csv_nan.csv"), nil, 1, []string{"{file}: line 10 (row 9), column \"sepal_width\""}},
 		{"csv NaN, predict", "predict", bad("csv_nan.csv"), nil, 1, []string{"{file}: line 10 (row 9), column \"sepal_width\""}},
 
@@ -230,6 +235,15 @@ func TestCatalogue(t *testing.T) {
 		{"model_data_short.seine.json", "params data holds 208 bytes, count 27 needs 216"},
 		{"model_future_version.seine.json", "version 2"},
 		{"model_duplicate_key.seine.json", `duplicate key "version"`},
+		// Issue 13: model files that contradict themselves, each sealed
+		// with a recomputed checksum (made by nn's TestCatalogueModels).
+		{"model_v2_future_version.seine.json", "file has version 3"},
+		{"model_v2_case_keys.seine.json", `unknown key "CLASSES"`},
+		{"model_v2_classes_disagree.seine.json", "output.classes"},
+		{"model_v2_label_is_input.seine.json", `label column "petal_width" is also an input`},
+		{"model_v2_encoder_disagrees.seine.json", "the encoder disagrees with the spec"},
+		{"model_v2_negative_scale.seine.json", "scale > 0"},
+		{"model_v2_overflow.seine.json", "overflow"},
 	} {
 		for _, cmd := range []string{"evaluate", "predict", "inspect"} {
 			cases = append(cases, catCase{f.file + ", " + cmd, cmd, bad(f.file), nil, 1, []string{"{file}: ", f.want}})
