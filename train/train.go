@@ -67,6 +67,17 @@ type Config struct {
 	// holdout rows by its rule and stores them in the model (sigmoid
 	// outputs only). It needs Holdout.
 	Thresholds *ThresholdRule
+	// Checkpoint, when its Every is > 0, is given a model of the current
+	// params every Every iterations, built with the run's own encoder, so
+	// that a caller can save it. Its error does not stop the run; the run
+	// stops calling it after the first.
+	Checkpoint Checkpoint
+}
+
+// Checkpoint asks Train for models of the params during a run.
+type Checkpoint struct {
+	Every int                     // iterations between models; 0 means none
+	Save  func(m *nn.Model) error // called with a model whose summary holds the step's figures, Status "Checkpoint"
 }
 
 // Progress is the record of one iteration, with the holdout figures (NaN
@@ -231,7 +242,19 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	bestCost := math.Inf(1)
 	sinceBest := 0
 	userObs := lim.Observer
+	checkpointFailed := false
 	lim.Observer = func(st optim.Step, xk []float64) bool {
+		if ck := cfg.Checkpoint; ck.Every > 0 && ck.Save != nil && st.Iter%ck.Every == 0 && !checkpointFailed {
+			m, err := nn.NewModel(prep.Spec, append([]float64(nil), xk...), prep.Encoder, set.Classes)
+			if err == nil {
+				m.Label = set.Label
+				m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
+					Status: "Checkpoint", Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
+					TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()}
+				err = ck.Save(m)
+			}
+			checkpointFailed = err != nil
+		}
 		p := Progress{Step: st, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
 		stop := false
 		if hold != nil {

@@ -170,7 +170,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		if every == 0 {
 			every = max(limit/10, 1)
 		}
-		cfg.Limits.Observer = checkpointer(f.checkpoint, every, s, trainSet, !f.standardize, pr, e.stderr)
+		cfg.Checkpoint = checkpointer(f.checkpoint, every, pr, e.stderr)
 	}
 
 	res, err := train.Train(ctx, s, trainSet, cfg)
@@ -350,34 +350,18 @@ func netShape(s *spec.Network) string {
 	return b.String()
 }
 
-// checkpointer returns an observer that saves the current params as a model
-// every `every` iterations. A failed save is reported once and the run goes
-// on: the final model matters more than the checkpoints.
-func checkpointer(path string, every int, s *spec.Network, set *data.Set, noScale bool, pr *progress, stderr io.Writer) func(optim.Step, []float64) bool {
-	prep, perr := train.Prepare(s, set, nil, noScale)
-	failed := perr != nil // the run itself reports the problem
-	if perr == nil {
-		prep.X = nil // only the encoder and the resolved spec are needed
-	}
-	return func(st optim.Step, x []float64) bool {
-		if st.Iter%every != 0 || failed {
-			return false
-		}
-		m, err := nn.NewModel(prep.Spec, append([]float64(nil), x...), prep.Encoder, set.Classes)
-		if err == nil {
-			m.Label = set.Label
-			m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
-				Status: "Checkpoint", Cost: st.Cost, TrainRows: set.Rows(), Seed: s.Init.Seed, Library: nn.Version,
-				TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
-			err = m.Save(path)
-		}
+// checkpointer returns the training driver's checkpoint hook that saves
+// each model it is given to path. A failed save is reported once; the run
+// goes on, since the final model matters more than the checkpoints.
+func checkpointer(path string, every int, pr *progress, stderr io.Writer) train.Checkpoint {
+	return train.Checkpoint{Every: every, Save: func(m *nn.Model) error {
+		err := m.Save(path)
 		if err != nil {
-			failed = true
 			pr.done()
 			fmt.Fprintf(stderr, "seine train: warning: -checkpoint %s: %v; no more checkpoints\n", path, unwrapSave(err))
 		}
-		return false
-	}
+		return err
+	}}
 }
 
 // stopReasons says in words why a run stopped, by optim.Status name.
