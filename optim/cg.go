@@ -105,10 +105,11 @@ func (m *ConjugateGradient) iterate(r *runner) Status {
 	if m.alpha > 0 {
 		a0 = m.alpha * m.prevGD / m.gd
 	}
-	a, fa, _, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, m.gd, a0)
+	p, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, m.gd, a0)
 	if st != running {
 		return st
 	}
+	a, fa := p.alpha, p.f
 	r.stepLen = a * floats.Norm(m.d, 2)
 	// One pass for g₊ᵀg₊, g₊ᵀg and dᵀg₊.
 	var gg1, g1g, dg1 float64

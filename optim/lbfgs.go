@@ -97,10 +97,11 @@ func (m *LBFGS) iterate(r *runner) Status {
 	if m.count == 0 {
 		a0 = 1 / floats.Norm(m.d, 2)
 	}
-	a, fa, _, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, gd, a0)
+	p, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, gd, a0)
 	if st != running {
 		return st
 	}
+	a, fa := p.alpha, p.f
 	// New pair: s = a·d, y = g₊ − g.
 	s, y := m.s[m.head], m.y[m.head]
 	var sy, yy, ss float64
