@@ -16,8 +16,8 @@ import (
 // trial step is 1, except 1/‖g‖₂ when the memory is empty. If d_k is not a
 // descent direction the memory is cleared and d_k = −∇f(x_k).
 //
-// The zero value keeps 10 pairs with c₁ = 1e-4 and c₂ = 0.9. The workspace
-// holds 2·Memory + 3 vectors of length n.
+// The zero value keeps 10 pairs with c₁ = 1e-4 and c₂ = 0.9. Its own
+// workspace holds 2·Memory + 3 vectors of length n (see StateVectors).
 type LBFGS struct {
 	// Memory is the number of stored pairs, ≥ 1; 0 means 10.
 	Memory int
