@@ -423,3 +423,119 @@ func TestFormulaDecay(t *testing.T) {
 	}
 	assert.Equal(t, 0.1, decayed(0.1, 0, 7), "no decay")
 }
+
+// twoBatches is f(x) = ¼·f_0(x) + ¾·f_1(x) in one dimension, with batch 0
+// f_0 = ½x² of share 1/4 and batch 1 f_1 = (3/2)x² of share 3/4. Shuffle
+// keeps the order, so every epoch is batch 0 then batch 1.
+type twoBatches struct{}
+
+func (twoBatches) Eval(grad, x []float64) float64 {
+	if grad != nil {
+		grad[0] = 0.25*x[0] + 0.75*3*x[0]
+	}
+	return 0.25*0.5*x[0]*x[0] + 0.75*1.5*x[0]*x[0]
+}
+func (twoBatches) Batches() int { return 2 }
+func (twoBatches) EvalBatch(grad, x []float64, k int) float64 {
+	l := []float64{1, 3}[k]
+	if grad != nil {
+		grad[0] = l * x[0]
+	}
+	return 0.5 * l * x[0] * x[0]
+}
+func (twoBatches) Share(k int) float64 { return []float64{0.25, 0.75}[k] }
+func (twoBatches) Shuffle(uint64)      {}
+
+// One epoch of two batches: the update is made per batch, and the Step
+// holds the share-weighted sums of the epoch (see Step). Heavy ball with
+// η = 1/8, β = 1/2 from x0 = 1:
+//
+//	batch 0: g = 1, f_0 = 1/2,  v = −1/8, x = 7/8;
+//	batch 1: g = 3·7/8 = 21/8, f_1 = (3/2)(7/8)² = 147/128,
+//	         v = ½(−1/8) − (1/8)(21/8) = −25/64, x = 31/64.
+//	Step: Cost = ¼·½ + ¾·147/128 = 505/512, GradNorm = |¼·1 + ¾·21/8| = 71/32,
+//	      StepLen = |31/64 − 1| = 33/64, Evaluations = ¼ + ¾ = 1.
+//
+// Adam counts t over batches, not epochs: with η = 1/10 and ε = 1/2, batch
+// 0 (t = 1) moves x by η·g/(|g| + ε) = 0.1/1.5 to x = 14/15; batch 1
+// (t = 2) has g = 3·14/15 = 2.8, m = 0.9·0.1 + 0.1·2.8 = 0.37,
+// v = 0.999·0.001 + 0.001·7.84 = 0.008839, m̂ = 0.37/0.19,
+// v̂ = 0.008839/0.001999, x = 14/15 − 0.1·m̂/(√v̂ + ½) = 0.85111437… All values
+// of the heavy ball are dyadic, exact in binary.
+func TestFormulaEpoch(t *testing.T) {
+	var steps []Step
+	var xs []float64
+	obs := func(s Step, x []float64) bool { steps, xs = append(steps, s), append(xs, x[0]); return false }
+	_, err := Minimize(context.Background(), twoBatches{}, []float64{1}, &Momentum{Rate: 0.125, Beta: 0.5},
+		Limits{Iterations: 1, GradTol: 1e-300, Observer: obs})
+	require.NoError(t, err)
+	require.Len(t, steps, 1)
+	assert.Equal(t, 31.0/64, xs[0], "x after one epoch")
+	assert.Equal(t, 505.0/512, steps[0].Cost, "Cost")
+	assert.Equal(t, 71.0/32, steps[0].GradNorm, "GradNorm")
+	assert.Equal(t, 33.0/64, steps[0].StepLen, "StepLen")
+	assert.Equal(t, 1.0, steps[0].Evaluations, "Evaluations")
+
+	xs = xs[:0]
+	_, err = Minimize(context.Background(), twoBatches{}, []float64{1}, &Adam{Rate: 0.1, Epsilon: 0.5},
+		Limits{Iterations: 1, GradTol: 1e-300, Observer: obs})
+	require.NoError(t, err)
+	mHat, vHat := 0.37/0.19, 0.008839/0.001999
+	assert.InDelta(t, 14.0/15-0.1*mHat/(math.Sqrt(vHat)+0.5), xs[0], roundTol, "x after one epoch of Adam")
+}
+
+// The pieces of the strong Wolfe line search (Nocedal & Wright 2006,
+// §3.5), each against a function whose answer is known in closed form.
+func TestFormulaLineSearch(t *testing.T) {
+	t.Run("cubicMin", func(t *testing.T) {
+		// φ(α) = α³ − 3α, φ' = 3α² − 3: its local minimiser is α = 1.
+		// From (0, φ 0, φ' −3) and (2, φ 2, φ' 9) the interpolating cubic
+		// is φ itself, so eq. 3.59 must return 1, in either order.
+		assert.InDelta(t, 1, cubicMin(0, 0, -3, 2, 2, 9), roundTol)
+		assert.InDelta(t, 1, cubicMin(2, 2, 9, 0, 0, -3), roundTol)
+		// φ(α) = (α − 0.3)²: a quadratic is a cubic too; minimiser 0.3.
+		assert.InDelta(t, 0.3, cubicMin(0, 0.09, -0.6, 1, 0.49, 1.4), roundTol)
+		// φ(α) = α³ + 3α, φ' = 3α² + 3 > 0, has no stationary point: NaN
+		// from (0, φ 0, φ' 3) and (1, φ 4, φ' 6).
+		assert.True(t, math.IsNaN(cubicMin(0, 0, 3, 1, 4, 6)))
+	})
+	t.Run("secant", func(t *testing.T) {
+		// The slopes of (α − 0.3)², −0.6 at 0 and 1.4 at 1, vanish at 0.3.
+		assert.InDelta(t, 0.3, secant(0, -0.6, 1, 1.4), roundTol)
+		assert.InDelta(t, 0.3, secant(1, 1.4, 0, -0.6), roundTol)
+		assert.True(t, math.IsNaN(secant(0, 1, 1, 1)))
+	})
+	t.Run("decrease", func(t *testing.T) {
+		// φ(0) = 1, φ'(0) = −1, c₁ = 1/4: Armijo accepts φ(α) ≤ 1 − α/4;
+		// within the rounding tolerance of φ(0) the approximate form
+		// (Hager & Zhang 2005) accepts φ'(α) ≤ (2c₁ − 1)φ'(0) = 1/2.
+		w := wolfe{c1: 0.25, c2: 0.9}
+		l := &line{f0: 1, d0: -1, fTol: 1e-12}
+		for _, c := range []struct {
+			name string
+			p    point
+			want bool
+		}{
+			{"Armijo met", point{alpha: 2, f: 0.5, dphi: 5}, true},
+			{"Armijo missed", point{alpha: 2, f: 0.51, dphi: 5}, false},
+			{"approximate, slope low enough", point{alpha: 2, f: 1, dphi: 0.5}, true},
+			{"approximate, slope too high", point{alpha: 2, f: 1, dphi: 0.6}, false},
+			{"cost above φ(0) + fTol", point{alpha: 2, f: 1 + 1e-11, dphi: 0}, false},
+		} {
+			assert.Equal(t, c.want, w.decrease(l, c.p), c.name)
+		}
+	})
+	t.Run("extrapolate then zoom", func(t *testing.T) {
+		// CG's first search from (3, 1) with the default c₂ = 0.1: along
+		// d = −(3, 4), φ'(α) = −25 + 73α, exact step α* = 25/73.
+		//   α = 1/5: φ' = −52/5, descending and |φ'| > 2.5: extrapolate.
+		//   The cubic through α = 0 and 1/5 is φ itself, minimiser
+		//   25/73 ≈ 0.342, below the least extrapolation 1/5 + 1.1·1/5 = 0.42:
+		//   α = 0.42, φ' = 5.66 > 0: zoom between 0.42 and 1/5.
+		//   The cubic gives α* exactly, where φ' = 0: accepted.
+		o := observe(t, diagQuadratic(1, 4), []float64{3, 1}, &ConjugateGradient{}, 1)
+		at := func(a float64) []float64 { return []float64{3 - 3*a, 1 - 4*a} }
+		want := [][]float64{{3, 1}, at(0.2), at(0.42), at(25.0 / 73)}
+		assertPoints(t, want, o.evals, roundTol, "point evaluated")
+	})
+}
