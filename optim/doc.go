@@ -50,6 +50,6 @@
 // point so far, status Cancelled and an error wrapping ctx.Err().
 //
 // Workspaces live in the method values and are reused: after the first
-// iteration no method of this package allocates (see BenchmarkIteration),
-// and the same inputs give bit-identical results.
+// iteration no method of this package but Gonum allocates (see
+// BenchmarkIteration), and the same inputs give bit-identical results.
 package optim

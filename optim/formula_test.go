@@ -200,26 +200,32 @@ func TestFormulaGradientDescentBacktracking(t *testing.T) {
 //	FR   β = 32/125                  d_1 = (−396/125, −228/125) g_1ᵀd_1 = −5664/625
 //	HS   β = −20/73                  d_1 = (−576/365, 108/365)  g_1ᵀd_1 = −1296/365
 //	DY   β = 32/73                   d_1 = (−1356/365, −932/365) g_1ᵀd_1 = −800/73
+//
+// With Restart = 1 the method restarts after every iteration whatever the
+// formula: from (1.2, 0.4), d_1 = −g_1, g_1ᵀd_1 = −73/25, and the trial
+// point is x_1 + ½·(−4)/(−73/25)·d_1 = x_1 − (50/73)·g_1 = (69/365, 254/365).
 func TestFormulaConjugateGradient(t *testing.T) {
 	cases := []struct {
 		formula CGFormula
+		restart int
 		x0      []float64
 		x1      []float64
 		trial   []float64 // third point evaluated: x_1 + α_0·(g_0ᵀd_0/g_1ᵀd_1)·d_1
 	}{
-		{PolakRibierePlus, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-22611.0 / 4565, -5626.0 / 4565}},
-		{FletcherReeves, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-1393.0 / 1095, 54.0 / 365}},
-		{HestenesStiefel, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-73.0 / 45, 1.0 / 60}},
-		{DaiYuan, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-0.6, 0.4}},
-		{PolakRibierePlus, []float64{3, 1}, []float64{2.4, 0.2}, []float64{21.0 / 40, -17.0 / 40}},
-		{FletcherReeves, []float64{3, 1}, []float64{2.4, 0.2}, []float64{1539.0 / 2360, -1903.0 / 2360}},
-		{HestenesStiefel, []float64{3, 1}, []float64{2.4, 0.2}, []float64{8.0 / 45, 37.0 / 60}},
-		{DaiYuan, []float64{3, 1}, []float64{2.4, 0.2}, []float64{141.0 / 200, -193.0 / 200}},
+		{PolakRibierePlus, 0, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-22611.0 / 4565, -5626.0 / 4565}},
+		{FletcherReeves, 0, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-1393.0 / 1095, 54.0 / 365}},
+		{HestenesStiefel, 0, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-73.0 / 45, 1.0 / 60}},
+		{DaiYuan, 0, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{-0.6, 0.4}},
+		{PolakRibierePlus, 0, []float64{3, 1}, []float64{2.4, 0.2}, []float64{21.0 / 40, -17.0 / 40}},
+		{FletcherReeves, 0, []float64{3, 1}, []float64{2.4, 0.2}, []float64{1539.0 / 2360, -1903.0 / 2360}},
+		{HestenesStiefel, 0, []float64{3, 1}, []float64{2.4, 0.2}, []float64{8.0 / 45, 37.0 / 60}},
+		{DaiYuan, 0, []float64{3, 1}, []float64{2.4, 0.2}, []float64{141.0 / 200, -193.0 / 200}},
+		{FletcherReeves, 1, []float64{1.2, 0.4}, []float64{0.6, -0.4}, []float64{69.0 / 365, 254.0 / 365}},
 	}
 	for _, c := range cases {
-		name := fmt.Sprintf("%v/start %v", c.formula, c.x0)
+		name := fmt.Sprintf("%v/start %v/restart %d", c.formula, c.x0, c.restart)
 		t.Run(name, func(t *testing.T) {
-			o := observe(t, diagQuadratic(1, 4), c.x0, &ConjugateGradient{Formula: c.formula, Curvature: 0.9}, 2)
+			o := observe(t, diagQuadratic(1, 4), c.x0, &ConjugateGradient{Formula: c.formula, Restart: c.restart, Curvature: 0.9}, 2)
 			require.GreaterOrEqual(t, len(o.evals), 3)
 			assertPoints(t, [][]float64{c.x0, c.x1, c.trial}, o.evals[:3], roundTol, "point evaluated")
 			assert.InDeltaSlice(t, c.x1, o.iterates[0], roundTol, "x_1")
