@@ -23,17 +23,10 @@ import "runtime"
 // blas64.General of 48 bytes each, and the lists of the batches). It leaves out what the
 // caller holds besides: the data set as read from the file (another m·n_0 +
 // m·K words, often kept alongside the scaled copy), holdout rows and their
-// workspace, and the optimizer's state. For the optimizer add, in words of
-// P, the 3 vectors every run of optim.Minimize keeps (current point,
-// gradient, best point) and one for the result, plus the method's own:
-//
-//	gd        2           trial point and gradient
-//	cg        3           direction, trial point and gradient
-//	lbfgs     2·Memory+3  the Memory pairs (s, y), direction, trial point, gradient
-//	momentum  4           velocity, look-ahead point, epoch sums
-//	adam      4           first and second moments, epoch sums
-//
-// so L-BFGS with the default Memory of 10 keeps about 27·P words in all.
+// workspace, and the optimizer's state. For the optimizer add P words for
+// each of the optim.StateVectors(method) vectors that a run of
+// optim.Minimize keeps, and P for the starting point the caller holds:
+// with the default L-BFGS (Memory 10) 1 + 26 = 27·P words in all.
 // Go's allocator and garbage collector can hold up to about twice the live
 // bytes at a peak (GOGC=100), which this estimate does not include.
 func (n *Net) TrainingBytes(rows int, opt ObjectiveOptions) int64 {

@@ -45,9 +45,10 @@ func (c CGFormula) String() string {
 //
 // with β_k from Formula and α_k from the strong Wolfe line search. The
 // method restarts (d = −g) every Restart iterations and whenever d is not a
-// descent direction (gᵀd ≥ 0) or β cannot be formed (dᵀy ≤ 0). The first
-// trial step is 1/‖g_0‖₂ and later α_{k−1}·g_{k−1}ᵀd_{k−1}/(g_kᵀd_k)
-// (Nocedal & Wright 2006, eq. 3.60).
+// descent direction (gᵀd ≥ 0) or β cannot be formed (dᵀy ≤ 0, or β not
+// finite); a β of 0, as when PolakRibierePlus clamps, counts as a restart.
+// The first trial step is 1/‖g_0‖₂ and later
+// α_{k−1}·g_{k−1}ᵀd_{k−1}/(g_kᵀd_k) (Nocedal & Wright 2006, eq. 3.60).
 //
 // The zero value is Polak–Ribière+ with restarts every n iterations,
 // c₁ = 1e-4 and c₂ = 0.1.
@@ -105,10 +106,11 @@ func (m *ConjugateGradient) iterate(r *runner) Status {
 	if m.alpha > 0 {
 		a0 = m.alpha * m.prevGD / m.gd
 	}
-	a, fa, _, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, m.gd, a0)
+	p, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, m.gd, a0)
 	if st != running {
 		return st
 	}
+	a, fa := p.alpha, p.f
 	r.stepLen = a * floats.Norm(m.d, 2)
 	// One pass for g₊ᵀg₊, g₊ᵀg and dᵀg₊.
 	var gg1, g1g, dg1 float64

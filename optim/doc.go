@@ -24,8 +24,8 @@
 // When to choose which method:
 //
 //	problem                                         method
-//	full batch, smooth, n up to ~10⁷                LBFGS (the default choice; 2m+3 vectors of memory)
-//	full batch, smooth, memory tight                ConjugateGradient (4 vectors)
+//	full batch, smooth, n up to ~10⁷                LBFGS (the default choice; 2m+6 vectors of n)
+//	full batch, smooth, memory tight                ConjugateGradient (6 vectors of n)
 //	full batch, teaching or a baseline              GradientDescent (slow on ill-conditioned f)
 //	many rows, mini-batches, noisy gradients        Adam (robust to scaling), Momentum (tuned rate)
 //	non-smooth or no gradient                       Gonum with optimize.NelderMead (small n only)
@@ -36,14 +36,20 @@
 // full objective, so their Step.Cost and Step.GradNorm are batch estimates
 // (see Step).
 //
+// Memory: StateVectors gives, for each method, the number of vectors of
+// length n that a run keeps (m is LBFGS's Memory above); a test measures
+// it against the bytes a run allocates.
+//
 // Stopping: Limits.GradTol tests ‖∇f‖₂ ≤ GradTol·max(1, |f|) after every
-// iteration; the context, the evaluation limit and the time limit are
-// checked before every evaluation. A cost or gradient that is NaN or ±Inf
-// stops the run with status Diverged and the best finite point; Minimize
-// then returns an error wrapping ErrDiverged. Cancellation returns the best
+// iteration (with |f| no larger than the lowest cost's magnitude); the
+// context, the evaluation limit and the time limit are checked before
+// every evaluation. A cost or gradient that is NaN or ±Inf, or a cost above
+// Blowup times the reference cost, stops the run with status Diverged and
+// the best finite point; Minimize then returns an error wrapping
+// ErrDiverged. Cancellation returns the best
 // point so far, status Cancelled and an error wrapping ctx.Err().
 //
 // Workspaces live in the method values and are reused: after the first
-// iteration no method of this package allocates (see BenchmarkIteration),
-// and the same inputs give bit-identical results.
+// iteration no method of this package but Gonum allocates (see
+// BenchmarkIteration), and the same inputs give bit-identical results.
 package optim

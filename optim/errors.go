@@ -21,7 +21,8 @@ var (
 	ErrBadLimits = errors.New("optim: bad limits")
 	// ErrBadSetting: a setting of a method is out of range.
 	ErrBadSetting = errors.New("optim: bad method setting")
-	// ErrDiverged: the cost or the gradient became NaN or ±Inf during a run.
+	// ErrDiverged: the cost or the gradient became NaN or ±Inf during a
+	// run, or the cost passed Blowup times the reference cost.
 	ErrDiverged = errors.New("optim: diverged")
 )
 

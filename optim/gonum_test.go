@@ -2,12 +2,13 @@ package optim
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"os"
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/optimize"
 )
 
@@ -29,16 +30,11 @@ func TestGonum(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			cnt := &counted{Objective: rosen()}
 			res, err := Minimize(context.Background(), cnt, x0, &Gonum{Method: c.m}, mghLimits)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			// Source: Moré, Garbow & Hillstrom (1981) via gonum optimize/functions.
-			if _, ok := reached(res.X, res.Cost, minima, c.tol); !ok {
-				t.Errorf("f = %.3g, %v", res.Cost, res.Status)
-			}
-			if float64(cnt.calls) != res.Evaluations {
-				t.Errorf("%d calls, %g evaluations counted", cnt.calls, res.Evaluations)
-			}
+			_, ok := reached(res.X, res.Cost, minima, c.tol)
+			assert.True(t, ok, "f = %.3g, %v: want a listed minimum within %g", res.Cost, res.Status, c.tol)
+			assert.Equal(t, float64(cnt.calls), res.Evaluations, "calls of the objective against evaluations counted")
 			t.Logf("%v, %d iterations, %g evaluations, f = %.3g", res.Status, res.Iterations, res.Evaluations, res.Cost)
 		})
 	}
@@ -52,14 +48,14 @@ func TestGonum(t *testing.T) {
 				}
 				return false
 			}})
-		if res.Status != Cancelled || !errors.Is(err, context.Canceled) || res.Iterations != 3 {
-			t.Errorf("%v, %v, %d", res.Status, err, res.Iterations)
-		}
+		assert.ErrorIs(t, err, context.Canceled)
+		assert.Equal(t, Cancelled, res.Status)
+		assert.Equal(t, 3, res.Iterations)
 		cnt := &counted{Objective: rosen()}
 		res, err = Minimize(context.Background(), cnt, x0, &Gonum{}, Limits{Evaluations: 20})
-		if err != nil || res.Status != EvaluationLimit || cnt.calls != 20 {
-			t.Errorf("%v, %v, %d calls", err, res.Status, cnt.calls)
-		}
+		require.NoError(t, err)
+		assert.Equal(t, EvaluationLimit, res.Status)
+		assert.Equal(t, 20, cnt.calls, "calls of the objective")
 	})
 }
 

@@ -1,10 +1,11 @@
 package optim
 
 import (
-	"errors"
 	"math"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/optimize/functions"
 )
@@ -36,19 +37,28 @@ func TestCheckGradient(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			gc, err := CheckGradient(c.f, x, c.settings)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if gc.MaxRelErr > c.maxErr || gc.MaxRelErr < c.minErr || (c.index >= 0 && gc.Index != c.index) {
-				t.Errorf("max relative error %.3g at %d; want in [%g, %g] at %d", gc.MaxRelErr, gc.Index, c.minErr, c.maxErr, c.index)
+			require.NoError(t, err)
+			assert.LessOrEqual(t, gc.MaxRelErr, c.maxErr, "largest relative error")
+			assert.GreaterOrEqual(t, gc.MaxRelErr, c.minErr, "largest relative error")
+			if c.index >= 0 {
+				assert.Equal(t, c.index, gc.Index, "coordinate of the largest error")
 			}
 			t.Logf("max relative error %.3g at %d", gc.MaxRelErr, gc.Index)
 		})
 	}
-	if _, err := CheckGradient(nil, x, nil); !errors.Is(err, ErrNilObjective) {
-		t.Errorf("nil objective: %v", err)
-	}
-	if _, err := CheckGradient(good, []float64{math.Inf(1), 0, 0, 0}, nil); !errors.Is(err, ErrNotFiniteStart) {
-		t.Errorf("Inf in x: %v", err)
-	}
+	t.Run("bad input", func(t *testing.T) {
+		for _, c := range []struct {
+			name string
+			f    Objective
+			x    []float64
+			want error
+		}{
+			{"nil objective", nil, x, ErrNilObjective},
+			{"empty x", good, nil, ErrEmptyStart},
+			{"Inf in x", good, []float64{math.Inf(1), 0, 0, 0}, ErrNotFiniteStart},
+		} {
+			_, err := CheckGradient(c.f, c.x, nil)
+			assert.ErrorIs(t, err, c.want, c.name)
+		}
+	})
 }

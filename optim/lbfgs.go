@@ -16,8 +16,8 @@ import (
 // trial step is 1, except 1/‖g‖₂ when the memory is empty. If d_k is not a
 // descent direction the memory is cleared and d_k = −∇f(x_k).
 //
-// The zero value keeps 10 pairs with c₁ = 1e-4 and c₂ = 0.9. The workspace
-// holds 2·Memory + 3 vectors of length n.
+// The zero value keeps 10 pairs with c₁ = 1e-4 and c₂ = 0.9. Its own
+// workspace holds 2·Memory + 3 vectors of length n (see StateVectors).
 type LBFGS struct {
 	// Memory is the number of stored pairs, ≥ 1; 0 means 10.
 	Memory int
@@ -97,10 +97,11 @@ func (m *LBFGS) iterate(r *runner) Status {
 	if m.count == 0 {
 		a0 = 1 / floats.Norm(m.d, 2)
 	}
-	a, fa, _, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, gd, a0)
+	p, st := wolfe{m.Decrease, m.Curvature}.search(r, r.x, m.d, m.xt, m.gt, r.f, gd, a0)
 	if st != running {
 		return st
 	}
+	a, fa := p.alpha, p.f
 	// New pair: s = a·d, y = g₊ − g.
 	s, y := m.s[m.head], m.y[m.head]
 	var sy, yy, ss float64

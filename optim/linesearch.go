@@ -51,31 +51,47 @@ func checkWolfe(method string, c1, c2 *float64, defC2 float64) error {
 	return nil
 }
 
-// search returns a step α meeting the strong Wolfe conditions, the cost
-// φ(α) and the slope φ'(α). On running, xt = x + α·d and gt = ∇f(xt).
+// point is a trial step of the line search with what is known there:
+// the step α, the cost φ(α) and the slope φ'(α).
+type point struct {
+	alpha, f, dphi float64
+}
+
+// line is the one-dimensional problem φ(α) = f(x + α·d) of one search:
+// where it starts, where trial points and their gradients are written, and
+// φ(0), φ'(0) and the tolerance within which two costs count as equal.
+type line struct {
+	r            *runner
+	x, d, xt, gt []float64
+	f0, d0       float64 // φ(0), φ'(0) < 0
+	fTol         float64 // noiseRel·|φ(0)|
+}
+
+// search returns a step α meeting the strong Wolfe conditions with φ(α)
+// and φ'(α). On running, xt = x + α·d and gt = ∇f(xt).
 // f0 = φ(0), d0 = φ'(0) < 0, a1 > 0 is the first trial step.
-func (w wolfe) search(r *runner, x, d, xt, gt []float64, f0, d0, a1 float64) (a, fa, da float64, st Status) {
-	aPrev, fPrev, dPrev := 0.0, f0, d0
-	a = a1
-	fTol := noiseRel * math.Abs(f0)
+func (w wolfe) search(r *runner, x, d, xt, gt []float64, f0, d0, a1 float64) (point, Status) {
+	l := line{r: r, x: x, d: d, xt: xt, gt: gt, f0: f0, d0: d0, fTol: noiseRel * math.Abs(f0)}
+	prev := point{0, f0, d0}
+	a := a1
 	for i := 0; i < lineSearchMaxEvals; i++ {
-		fa, da, st = phi(r, x, d, xt, gt, a)
+		p, st := l.at(a)
 		if st != running {
-			return a, fa, da, st
+			return p, st
 		}
-		if !w.decrease(f0, d0, a, fa, da, fTol) || (i > 0 && fa > fPrev+fTol) {
-			return w.zoom(r, x, d, xt, gt, f0, d0, fTol, aPrev, fPrev, dPrev, a, fa, da, lineSearchMaxEvals-1-i)
+		if !w.decrease(&l, p) || (i > 0 && p.f > prev.f+l.fTol) {
+			return w.zoom(&l, prev, p, lineSearchMaxEvals-1-i)
 		}
-		if math.Abs(da) <= -w.c2*d0 {
-			return a, fa, da, running
+		if math.Abs(p.dphi) <= -w.c2*d0 {
+			return p, running
 		}
-		if da >= 0 {
-			return w.zoom(r, x, d, xt, gt, f0, d0, fTol, a, fa, da, aPrev, fPrev, dPrev, lineSearchMaxEvals-1-i)
+		if p.dphi >= 0 {
+			return w.zoom(&l, p, prev, lineSearchMaxEvals-1-i)
 		}
 		// Still descending: extrapolate.
-		lo := a + extrapolateMinRatio*(a-aPrev)
-		hi := a + extrapolateMaxRatio*(a-aPrev)
-		next := interpolate(aPrev, fPrev, dPrev, a, fa, da, f0)
+		lo := a + extrapolateMinRatio*(a-prev.alpha)
+		hi := a + extrapolateMaxRatio*(a-prev.alpha)
+		next := interpolate(prev, p, f0)
 		if !(next >= lo) || next > hi { // NaN, or outside [lo, hi]
 			if next < lo {
 				next = lo
@@ -83,25 +99,27 @@ func (w wolfe) search(r *runner, x, d, xt, gt []float64, f0, d0, a1 float64) (a,
 				next = hi
 			}
 		}
-		aPrev, fPrev, dPrev = a, fa, da
+		prev = p
 		a = next
 	}
-	return a, fa, da, LineSearchFailed
+	return point{a, math.NaN(), math.NaN()}, LineSearchFailed
 }
 
-// zoom narrows the bracket between lo and hi, where lo is the step of lowest
-// cost met so far that gives sufficient decrease (Nocedal & Wright 2006,
-// algorithm 3.6). If the evaluations run out it falls back on lo when lo > 0
-// and φ(lo) < φ(0): a step that meets the sufficient-decrease condition
-// only; otherwise the search fails.
-func (w wolfe) zoom(r *runner, x, d, xt, gt []float64, f0, d0, fTol, lo, flo, dlo, hi, fhi, dhi float64, left int) (a, fa, da float64, st Status) {
-	width := math.Abs(hi - lo)
+// zoom narrows the bracket between lo and hi, where lo is the point of
+// lowest cost met so far that gives sufficient decrease (Nocedal & Wright
+// 2006, algorithm 3.6), with at most left evaluations. If they run out it
+// falls back on lo when lo.alpha > 0 and φ(lo) < φ(0): a step that meets
+// the sufficient-decrease condition only; otherwise the search fails.
+func (w wolfe) zoom(l *line, lo, hi point, left int) (point, Status) {
+	width := math.Abs(hi.alpha - lo.alpha)
+	var p point
+	var st Status
 	for k := 0; left > 0; k, left = k+1, left-1 {
-		if math.Abs(hi-lo) <= 1e-15*math.Max(math.Abs(lo), math.Abs(hi)) {
+		if math.Abs(hi.alpha-lo.alpha) <= 1e-15*math.Max(math.Abs(lo.alpha), math.Abs(hi.alpha)) {
 			break
 		}
-		lower, upper := math.Min(lo, hi), math.Max(lo, hi)
-		a = interpolate(lo, flo, dlo, hi, fhi, dhi, f0)
+		lower, upper := math.Min(lo.alpha, hi.alpha), math.Max(lo.alpha, hi.alpha)
+		a := interpolate(lo, hi, l.f0)
 		if k%3 == 2 { // every third trial: bisect unless the bracket halved
 			if upper-lower > width/2 {
 				a = math.NaN()
@@ -111,33 +129,31 @@ func (w wolfe) zoom(r *runner, x, d, xt, gt []float64, f0, d0, fTol, lo, flo, dl
 		margin := zoomMargin * (upper - lower)
 		switch {
 		case math.IsNaN(a):
-			a = (lo + hi) / 2
+			a = (lo.alpha + hi.alpha) / 2
 		case a < lower+margin:
 			a = lower + margin
 		case a > upper-margin:
 			a = upper - margin
 		}
-		fa, da, st = phi(r, x, d, xt, gt, a)
-		if st != running {
-			return a, fa, da, st
+		if p, st = l.at(a); st != running {
+			return p, st
 		}
-		if !w.decrease(f0, d0, a, fa, da, fTol) || fa > flo+fTol {
-			hi, fhi, dhi = a, fa, da
+		if !w.decrease(l, p) || p.f > lo.f+l.fTol {
+			hi = p
 			continue
 		}
-		if math.Abs(da) <= -w.c2*d0 {
-			return a, fa, da, running
+		if math.Abs(p.dphi) <= -w.c2*l.d0 {
+			return p, running
 		}
-		if da*(hi-lo) >= 0 {
-			hi, fhi, dhi = lo, flo, dlo
+		if p.dphi*(hi.alpha-lo.alpha) >= 0 {
+			hi = lo
 		}
-		lo, flo, dlo = a, fa, da
+		lo = p
 	}
-	if lo > 0 && flo < f0 {
-		fa, da, st = phi(r, x, d, xt, gt, lo)
-		return lo, fa, da, st
+	if lo.alpha > 0 && lo.f < l.f0 {
+		return l.at(lo.alpha)
 	}
-	return a, fa, da, LineSearchFailed
+	return p, LineSearchFailed
 }
 
 // decrease is the sufficient-decrease test: the Armijo condition
@@ -145,19 +161,19 @@ func (w wolfe) zoom(r *runner, x, d, xt, gt []float64, f0, d0, fTol, lo, flo, dl
 // their rounding (fTol), the approximate form of Hager & Zhang (2005):
 // φ(α) ≤ φ(0) + fTol and φ'(α) ≤ (2c₁ − 1)·φ'(0), which is equivalent to
 // the Armijo condition on a quadratic but reads only the slope.
-func (w wolfe) decrease(f0, d0, a, fa, da, fTol float64) bool {
-	return fa <= f0+w.c1*a*d0 || (fa <= f0+fTol && da <= (2*w.c1-1)*d0)
+func (w wolfe) decrease(l *line, p point) bool {
+	return p.f <= l.f0+w.c1*p.alpha*l.d0 || (p.f <= l.f0+l.fTol && p.dphi <= (2*w.c1-1)*l.d0)
 }
 
-// interpolate returns the next trial step from two steps a and b: the
+// interpolate returns the next trial step from two points p and q: the
 // minimiser of the interpolating cubic, or, when the costs differ by less
 // than resolvedRel·|φ(0)| so that their difference is dominated by
 // rounding, the secant step on the slopes alone.
-func interpolate(a, fa, da, b, fb, db, f0 float64) float64 {
-	if math.Abs(fa-fb) <= resolvedRel*math.Abs(f0) {
-		return secant(a, da, b, db)
+func interpolate(p, q point, f0 float64) float64 {
+	if math.Abs(p.f-q.f) <= resolvedRel*math.Abs(f0) {
+		return secant(p.alpha, p.dphi, q.alpha, q.dphi)
 	}
-	return cubicMin(a, fa, da, b, fb, db)
+	return cubicMin(p.alpha, p.f, p.dphi, q.alpha, q.f, q.dphi)
 }
 
 // secant returns the zero of the line through (a, da) and (b, db), the
@@ -170,15 +186,15 @@ func secant(a, da, b, db float64) float64 {
 	return b - db*(b-a)/(db-da)
 }
 
-// phi evaluates φ(a) = f(x + a·d) and φ'(a) = ∇f(x + a·d)ᵀd, leaving the
+// at evaluates φ(a) = f(x + a·d) and φ'(a) = ∇f(x + a·d)ᵀd, leaving the
 // point in xt and the gradient in gt.
-func phi(r *runner, x, d, xt, gt []float64, a float64) (fa, da float64, st Status) {
-	floats.AddScaledTo(xt, x, a, d)
-	fa, st = r.eval(gt, xt)
+func (l *line) at(a float64) (point, Status) {
+	floats.AddScaledTo(l.xt, l.x, a, l.d)
+	f, st := l.r.eval(l.gt, l.xt)
 	if st != running {
-		return fa, 0, st
+		return point{a, f, 0}, st
 	}
-	return fa, floats.Dot(gt, d), running
+	return point{a, f, floats.Dot(l.gt, l.d)}, running
 }
 
 // cubicMin returns the minimiser of the cubic that interpolates φ(a) = fa,

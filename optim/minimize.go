@@ -24,6 +24,10 @@ type Method interface {
 	// r.f, r.g, r.gnorm and r.stepLen for the new point; on any other status
 	// r.x, r.f, r.g and r.gnorm still describe the last completed iteration.
 	iterate(r *runner) Status
+	// vectors returns the number of vectors of length n that init
+	// allocates for the method's own workspace (see StateVectors). It must
+	// not read anything but the settings, and must accept a nil receiver.
+	vectors() int
 }
 
 // finisher is implemented by methods that must release something when a

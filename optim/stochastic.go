@@ -87,7 +87,12 @@ func (e *epoch) end(r *runner) {
 	r.stepLen = floats.Distance(r.x, e.start, 2)
 }
 
-// rate returns Rate/(1 + Decay·e) for epoch e (counted from 0).
+// decayed returns the learning rate of epoch e (counted from 0),
+//
+//	η_e = rate/(1 + decay·e),
+//
+// the inverse-time decay (common practice); with decay > 0 it meets the
+// conditions Σ η_e = ∞, Σ η_e² < ∞ of Robbins & Monro (1951).
 func decayed(rate, decay float64, e int) float64 {
 	return rate / (1 + decay*float64(e))
 }

@@ -112,14 +112,14 @@ type Status int
 
 const (
 	running          Status = iota // not stopped; never in a Result
-	GradConverged                  // gradient test of Limits.GradTol met
+	GradConverged                  // gradient test of Limits.GradTol met, or a Gonum method stopped on optimize.GradientThreshold
 	CostConverged                  // cost test of Limits.CostTol met, or a Gonum method converged on its own test
 	IterationLimit                 // Limits.Iterations reached
 	EvaluationLimit                // Limits.Evaluations reached
 	TimeLimit                      // Limits.Time reached
 	Cancelled                      // the context was cancelled
-	Diverged                       // cost or gradient became NaN or ±Inf
-	LineSearchFailed               // no step met the line-search conditions
+	Diverged                       // cost or gradient became NaN or ±Inf, or the cost passed the Blowup bound
+	LineSearchFailed               // no step met the line-search conditions (GradientDescent: none in 60 halvings), or a Gonum method failed
 	Stopped                        // the observer asked to stop
 )
 

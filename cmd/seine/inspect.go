@@ -13,7 +13,9 @@ import (
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/onnx"
+	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
+	"github.com/seine-ml/seine/train"
 )
 
 // defaultInspectRows is the number of rows the memory estimate assumes for
@@ -131,15 +133,19 @@ func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, 
 }
 
 // optimState returns the name of the method a spec trains with and the
-// number of params-long vectors it keeps, following nn.TrainingBytes' doc:
-// 4 for every run (current point, gradient, best point, result) plus the
-// method's own.
+// number of params-long vectors training keeps for it: the start point that
+// the training driver hands to optim.Minimize, plus optim.StateVectors of
+// the method (the run's point, gradient and best point, and the method's
+// own workspace).
 func optimState(o spec.Optimizer) (string, int) {
-	own := map[spec.Optimizer]int{spec.GD: 2, spec.CG: 3, spec.LBFGS: 2*10 + 3, spec.Momentum: 4, spec.Adam: 4}
 	if o == 0 {
 		o = spec.LBFGS
 	}
-	return o.String(), 4 + own[o]
+	m, err := train.MethodFor(o, 0, 0)
+	if err != nil {
+		return o.String(), 0
+	}
+	return o.String(), 1 + optim.StateVectors(m)
 }
 
 func writeModelSummary(w io.Writer, m *nn.Model) {
