@@ -222,6 +222,16 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // Net returns the compiled net of m.
 func (m *Model) Net() *Net { return m.net }
 
+// built reports a Model that was not made by NewModel, Load, LoadFS,
+// ReadModel or train.Train (a zero or hand-filled Model), which cannot
+// predict.
+func (m *Model) built() error {
+	if m == nil || m.net == nil || m.enc == nil {
+		return fmt.Errorf("%w: the model was not built: make models with nn.NewModel, nn.Load or train.Train", ErrModel)
+	}
+	return nil
+}
+
 // Encoder returns the model's encoder.
 func (m *Model) Encoder() *encode.Encoder { return m.enc }
 
@@ -239,6 +249,9 @@ func (m *Model) Multilabel() bool { return m.Spec.Output.Multilabel }
 // the binary sigmoid net the one unit is the probability p of Classes[1],
 // and probs = [1−p, p].
 func (m *Model) classProbs(x []float64) *rowScratch {
+	if err := m.built(); err != nil {
+		panic(err.Error())
+	}
 	if len(x) != m.enc.NumInputs() {
 		panic(fmt.Sprintf("nn: row has %d values, the model takes %d inputs", len(x), m.enc.NumInputs()))
 	}

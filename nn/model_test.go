@@ -447,3 +447,17 @@ func TestRefusedStreamMemory(t *testing.T) {
 	t.Logf("refusing a stream at %d MiB allocated %.1f MiB", limit>>20, float64(alloc)/(1<<20))
 	assert.LessOrEqual(t, alloc, uint64(limit+readChunk+1<<20))
 }
+
+// A Model that was not built by a constructor cannot predict: the methods
+// that return errors say so (wrapping ErrModel), and the float64 methods
+// panic with the same message rather than dereference nil (issue 14).
+func TestZeroModel(t *testing.T) {
+	var m Model
+	_, err := m.PredictRecord(map[string]any{})
+	assert.ErrorIs(t, err, ErrModel)
+	_, err = m.Bind([]string{"a"})
+	assert.ErrorIs(t, err, ErrModel)
+	_, err = m.ProbabilitiesSet(nil)
+	assert.ErrorIs(t, err, ErrModel)
+	assert.PanicsWithValue(t, "nn: invalid model: the model was not built: make models with nn.NewModel, nn.Load or train.Train", func() { m.Predict([]float64{1}) })
+}

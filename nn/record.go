@@ -20,6 +20,9 @@ type Binding struct {
 // Bind binds the column names of the caller's rows. Every input of the
 // model must be among names; other names are ignored.
 func (m *Model) Bind(names []string) (*Binding, error) {
+	if err := m.built(); err != nil {
+		return nil, err
+	}
 	lay, err := m.enc.Layout(names)
 	if err != nil {
 		return nil, err
@@ -83,6 +86,9 @@ func (b *Binding) Predict(row []encode.Value) (int, error) {
 // field, a missing value or an unknown level that the input's rule refuses,
 // or a value of the wrong type is an *encode.FieldError.
 func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float64, error) {
+	if err := m.built(); err != nil {
+		return nil, err
+	}
 	sc := m.pool.Get().(*rowScratch)
 	defer m.pool.Put(sc)
 	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
@@ -106,6 +112,9 @@ func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float6
 // PredictRecord returns the index in Classes of the most probable class of
 // the record rec (see ProbabilitiesRecord).
 func (m *Model) PredictRecord(rec map[string]any) (int, error) {
+	if err := m.built(); err != nil {
+		return -1, err
+	}
 	sc := m.pool.Get().(*rowScratch)
 	defer m.pool.Put(sc)
 	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
@@ -126,6 +135,9 @@ func (m *Model) PredictRecord(rec map[string]any) (int, error) {
 // rows × NumClasses matrix. Every value is checked by the encoder first; the
 // problems are reported with their lines (see encode.Encoder.EncodeSet).
 func (m *Model) ProbabilitiesSet(set *data.Set) (*mat.Dense, error) {
+	if err := m.built(); err != nil {
+		return nil, err
+	}
 	u, err := m.enc.EncodeSet(set)
 	if err != nil {
 		return nil, err

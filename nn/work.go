@@ -187,15 +187,7 @@ func outputLoss(g spec.Activation, d []float64, z, t blas64.General, cw *classWe
 			total += row
 			continue
 		}
-		mx := math.Inf(-1)
-		for _, v := range zi {
-			mx = math.Max(mx, v)
-		}
-		s := 0.0
-		for _, v := range zi {
-			s += math.Exp(v - mx)
-		}
-		lse := mx + math.Log(s)
+		lse := logSumExp(zi)
 		sy := 0.0
 		for k, v := range zi {
 			if y := yi[k]; y != 0 {
@@ -212,6 +204,20 @@ func outputLoss(g spec.Activation, d []float64, z, t blas64.General, cw *classWe
 		total += row
 	}
 	return total
+}
+
+// logSumExp returns ln Σ_k e^(z_k), computed as max + ln Σ_k e^(z_k − max)
+// so that it neither overflows nor loses the largest term.
+func logSumExp(z []float64) float64 {
+	mx := math.Inf(-1)
+	for _, v := range z {
+		mx = math.Max(mx, v)
+	}
+	s := 0.0
+	for _, v := range z {
+		s += math.Exp(v - mx)
+	}
+	return mx + math.Log(s)
 }
 
 // weightedLoss is outputLoss with class weights (King & Zeng 2001 discuss
@@ -242,15 +248,7 @@ func weightedLoss(g spec.Activation, d []float64, z, t blas64.General, cw *class
 			}
 			continue
 		}
-		mx := math.Inf(-1)
-		for _, v := range zi {
-			mx = math.Max(mx, v)
-		}
-		s := 0.0
-		for _, v := range zi {
-			s += math.Exp(v - mx)
-		}
-		lse := mx + math.Log(s)
+		lse := logSumExp(zi)
 		sy := 0.0
 		for k, v := range zi {
 			if y := yi[k]; y != 0 {

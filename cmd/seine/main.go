@@ -231,16 +231,9 @@ func newFlags(c string, e *env) *flag.FlagSet {
 	return fs
 }
 
-func upperFirst(s string) string {
-	if s == "" {
-		return s
-	}
-	return strings.ToUpper(s[:1]) + s[1:]
-}
-
-// parseFlags parses args into fs and turns flag's errors into usage errors.
-// Extra positional arguments are a usage error.
-func parseFlags(fs *flag.FlagSet, args []string) error {
+// parseFlagsArgs is parseFlags for a command that takes positional
+// arguments after its flags (fs.Args()).
+func parseFlagsArgs(fs *flag.FlagSet, args []string) error {
 	out := fs.Output()
 	fs.SetOutput(io.Discard)
 	err := fs.Parse(args)
@@ -251,6 +244,22 @@ func parseFlags(fs *flag.FlagSet, args []string) error {
 	}
 	if err != nil {
 		return usagef("%v", err)
+	}
+	return nil
+}
+
+func upperFirst(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// parseFlags parses args into fs and turns flag's errors into usage errors.
+// Extra positional arguments are a usage error.
+func parseFlags(fs *flag.FlagSet, args []string) error {
+	if err := parseFlagsArgs(fs, args); err != nil {
+		return err
 	}
 	if fs.NArg() > 0 {
 		if err := boolFlagValue(fs, args); err != nil {

@@ -6,7 +6,6 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -585,16 +584,8 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 	asJSON := fs.Bool("json", false, "write the JSON the whole run writes with -json")
 	plot := fs.String("plot", "", "draw the plot the whole run draws with -plot to `FILE`.png or .svg")
 	trace := fs.String("trace", "", "compare parts: write every iteration of every run to `FILE`.csv")
-	out := fs.Output()
-	fs.SetOutput(io.Discard)
-	err := fs.Parse(args)
-	fs.SetOutput(out)
-	if errors.Is(err, flag.ErrHelp) {
-		fs.Usage()
-		return flag.ErrHelp
-	}
-	if err != nil {
-		return usagef("%v", err)
+	if err := parseFlagsArgs(fs, args); err != nil {
+		return err
 	}
 	paths := fs.Args()
 	if len(paths) == 0 {
