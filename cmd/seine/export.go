@@ -31,7 +31,7 @@ partial file.
 
 func runExport(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("export", e)
-	modelPath := fs.String("model", "", "model `FILE` written by seine train")
+	modelPath := modelFlag(fs)
 	out := fs.String("out", "", "ONNX `FILE` to write, e.g. model.onnx")
 	opset := fs.Int("opset", onnx.DefaultOpset, fmt.Sprintf("default-domain ONNX `opset` to declare, %d to %d", onnx.MinOpset, onnx.MaxOpset))
 	if err := parseFlags(fs, args); err != nil {

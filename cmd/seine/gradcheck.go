@@ -57,12 +57,12 @@ type gradReport struct {
 func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("gradient-check", e)
 	comma := commaFlag(fs)
-	specPath := fs.String("spec", "", "spec `FILE` (YAML) describing the net")
+	specPath := specFlag(fs)
 	dataPath := fs.String("data", "", "CSV `FILE` whose first rows to use (default random rows)")
-	label := fs.String("label", "", "name of the label `COLUMN` in -data (default the last column)")
+	label := labelFlag(fs, false)
 	rows := fs.Int("rows", 20, "number of `rows` to check on")
 	seed := fs.Uint64("seed", 1, "seed of the random rows and classes when there is no -data")
-	asJSON := fs.Bool("json", false, "write the result as one JSON object")
+	asJSON := jsonFlag(fs, "the result")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

@@ -34,8 +34,8 @@ was trained.
 
 func runInspect(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("inspect", e)
-	specPath := fs.String("spec", "", "spec `FILE` (YAML) to describe")
-	modelPath := fs.String("model", "", "model `FILE` to describe")
+	specPath := specFlag(fs)
+	modelPath := modelFlag(fs)
 	rows := fs.Int("rows", 0, "training `rows` for the memory estimate (default 10000, or the model's training rows)")
 	if err := parseFlags(fs, args); err != nil {
 		return err

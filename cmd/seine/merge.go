@@ -582,7 +582,7 @@ func readPart(ctx context.Context, path string) (*part, error) {
 func runMerge(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("merge", e)
 	asJSON := fs.Bool("json", false, "write the JSON the whole run writes with -json")
-	plot := fs.String("plot", "", "draw the plot the whole run draws with -plot to `FILE`.png or .svg")
+	plot := plotFileFlag(fs, "the plot the whole run draws with -plot")
 	trace := fs.String("trace", "", "compare parts: write every iteration of every run to `FILE`.csv")
 	if err := parseFlagsArgs(fs, args); err != nil {
 		return err

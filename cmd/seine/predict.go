@@ -44,12 +44,12 @@ output.
 func runPredict(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("predict", e)
 	comma := commaFlag(fs)
-	modelPath := fs.String("model", "", "model `FILE` written by seine train")
-	dataPath := fs.String("data", "", "CSV `FILE` with a header row; the label column may be absent")
+	modelPath := modelFlag(fs)
+	dataPath := dataFlag(fs, false)
 	out := fs.String("out", "", "write the predictions to `FILE` instead of standard output")
 	probs := fs.Bool("probabilities", false, "add one probability column per class")
 	digits := fs.Int("digits", 6, "significant `DIGITS` of the probabilities; 0 writes the shortest form that reads back to the same float64")
-	label := fs.String("label", "", "name of a label `COLUMN` to ignore (default: the model's)")
+	label := labelFlag(fs, true)
 	keep := fs.String("keep", "", "comma-separated `COLUMNS` copied from the input to the output, e.g. id,ts, to join rows back")
 	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class is predicted (default the model's operating thresholds, else 0.5)")
 	if err := parseFlags(fs, args); err != nil {

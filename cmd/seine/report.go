@@ -53,10 +53,10 @@ that apply where you deploy it.`
 func runReport(ctx context.Context, e *env, args []string) error {
 	fs := newFlags("report", e)
 	comma := commaFlag(fs)
-	modelPath := fs.String("model", "", "model `FILE` written by seine train")
-	dataPath := fs.String("data", "", "labelled CSV `FILE` with a header row")
+	modelPath := modelFlag(fs)
+	dataPath := dataFlag(fs, true)
 	out := fs.String("out", "", "HTML `FILE` to write (conventionally NAME.html)")
-	label := fs.String("label", "", "name of the label `COLUMN` (default the model's)")
+	label := labelFlag(fs, true)
 	repeats := fs.Int("repeats", diag.DefaultRepeats, "shuffles of each input for its importance, `N` ≥ 1")
 	seed := fs.Uint64("seed", 1, "seed of the shuffles")
 	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class counts as present (default the model's operating thresholds, else 0.5)")

@@ -81,20 +81,19 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	var f trainFlags
 	fs := newFlags("train", e)
 	comma := commaFlag(fs)
-	fs.StringVar(&f.spec, "spec", "", "spec `FILE` (YAML) describing the net")
-	fs.StringVar(&f.data, "data", "", "training data, a CSV `FILE` with a header row")
+	specP, dataP := specFlag(fs), dataFlag(fs, true)
 	fs.StringVar(&f.out, "out", "", "model `FILE` to write (conventionally NAME.seine.json)")
-	fs.StringVar(&f.label, "label", "", "name of the label `COLUMN` (default the last column)")
+	labelP := labelFlag(fs, false)
 	fs.StringVar(&f.optimizer, "optimizer", "", "method: gd, cg, lbfgs, momentum or adam (default the spec's, else lbfgs)")
-	fs.IntVar(&f.iterations, "iterations", 0, "iteration limit, epochs for momentum and adam (default the spec's, else 10000)")
+	iterationsP := iterationsFlag(fs)
 	fs.Float64Var(&f.rate, "rate", 0, "learning rate for gd, momentum and adam (default the spec's, else the method's)")
 	fs.IntVar(&f.batch, "batch", 0, "mini-batch `rows` for momentum and adam (default the spec's, else 32, as compare uses)")
 	fs.Float64Var(&f.holdout, "holdout", 0, "`FRACTION` of the rows, in (0, 1), kept out of training to measure the fit; 0 = none")
 	fs.Uint64Var(&f.seed, "seed", 0, "seed of the holdout split, initial params and shuffles (default the spec's init seed)")
-	fs.BoolVar(&f.standardize, "standardize", true, "centre and scale each feature on the training rows")
+	standardizeP := standardizeFlag(fs)
 	fs.BoolVar(&f.keepBest, "keep-best", false, "save the params of the iteration with the lowest holdout cost (needs -holdout)")
 	fs.IntVar(&f.patience, "patience", 0, "stop after `N` iterations without a lower holdout cost; 0 = never (needs -holdout)")
-	fs.BoolVar(&f.quiet, "quiet", false, "no progress on standard error")
+	quietP := quietFlag(fs)
 	fs.StringVar(&f.checkpoint, "checkpoint", "", "also save the current params to this model `FILE` during the run")
 	fs.IntVar(&f.every, "every", 0, "checkpoint every `N` iterations (default a tenth of the iteration limit)")
 	fs.StringVar(&f.resume, "resume", "", "start from the params of this model or checkpoint `FILE`")
@@ -103,6 +102,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
+	f.spec, f.data, f.label, f.iterations, f.standardize, f.quiet = *specP, *dataP, *labelP, *iterationsP, *standardizeP, *quietP
 	f.set = map[string]bool{}
 	fs.Visit(func(fl *flag.Flag) { f.set[fl.Name] = true })
 	if err := f.check(); err != nil {
