@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 
 	"github.com/seine-ml/seine/data"
+	trainfit "github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
@@ -43,7 +44,7 @@ type Contender struct {
 // spec's iteration limit.
 type CompareConfig struct {
 	// Optimizers are the methods to compare by name; for each seed each
-	// gets a fresh value from train.MethodFor with the spec's train.rate and
+	// gets a fresh value from trainfit.MethodFor with the spec's train.rate and
 	// the seed (which seeds the shuffles of momentum and Adam). nil with no
 	// Methods means gd, cg, lbfgs, momentum, adam.
 	Optimizers []spec.Optimizer
@@ -204,7 +205,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if err := checkCompareConfig(&cfg); err != nil {
 		return nil, err
 	}
-	if err := train.CheckSpec(s); err != nil {
+	if err := trainfit.CheckSpec(s); err != nil {
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {
@@ -221,7 +222,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 	if seed0 == 0 {
 		seed0 = s.Init.Seed
 	}
-	lim, batch := train.Defaults(s, cfg.Limits, cfg.Batch)
+	lim, batch := trainfit.Defaults(s, cfg.Limits, cfg.Batch)
 	if batch == 0 {
 		batch = DefaultBatch
 	}
@@ -399,7 +400,7 @@ func checkCompareConfig(cfg *CompareConfig) error {
 func contenderNames(cfg CompareConfig) ([]string, error) {
 	var names []string
 	for i, o := range cfg.Optimizers {
-		if _, err := train.MethodFor(o, 0, 0); err != nil || o == 0 {
+		if _, err := trainfit.MethodFor(o, 0, 0); err != nil || o == 0 {
 			return nil, fmt.Errorf("%w: Optimizers[%d] = %d is not a known optimizer", ErrConfig, i, int(o))
 		}
 		names = append(names, o.String())
@@ -427,7 +428,7 @@ func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Me
 	var m optim.Method
 	if i < len(cfg.Optimizers) {
 		var err error
-		if m, err = train.MethodFor(cfg.Optimizers[i], s.Train.Rate, seed); err != nil {
+		if m, err = trainfit.MethodFor(cfg.Optimizers[i], s.Train.Rate, seed); err != nil {
 			return nil, false, err
 		}
 	} else {
@@ -440,9 +441,9 @@ func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Me
 	return m, false, nil
 }
 
-// checkSet reports how set does not fit the net (see train.CheckSet).
+// checkSet reports how set does not fit the net (see trainfit.CheckSet).
 func checkSet(s *spec.Network, set *data.Set) error {
-	if err := train.CheckSet(s, set, "data"); err != nil {
+	if err := trainfit.CheckSet(s, set, "data"); err != nil {
 		return fmt.Errorf("%w: %w", ErrConfig, err)
 	}
 	return nil
@@ -451,9 +452,9 @@ func checkSet(s *spec.Network, set *data.Set) error {
 // problem holds the objectives every run of a comparison shares.
 type problem struct {
 	net     *nn.Net
-	full    *nn.Objective // all training rows, one batch
-	batched *nn.Objective // the same rows in mini-batches
-	hold    *train.Scorer // nil without a holdout
+	full    *nn.Objective    // all training rows, one batch
+	batched *nn.Objective    // the same rows in mini-batches
+	hold    *trainfit.Scorer // nil without a holdout
 	grad    []float64
 	warn    []string
 }
@@ -468,7 +469,7 @@ func (p *problem) close() {
 }
 
 func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batch, workers int) (*problem, error) {
-	prep, err := train.Prepare(s, trainSet, holdSet, noScale)
+	prep, err := trainfit.Prepare(s, trainSet, holdSet, noScale)
 	if err != nil {
 		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
 	}
@@ -477,7 +478,7 @@ func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batc
 	if err != nil {
 		return nil, err
 	}
-	weights, wwarn := train.ClassWeights(s, trainSet)
+	weights, wwarn := trainfit.ClassWeights(s, trainSet)
 	warn = append(warn, wwarn...)
 	full, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Workers: workers, ClassWeights: weights})
 	if err != nil {
@@ -489,7 +490,7 @@ func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batc
 	}
 	p := &problem{net: net, full: full, batched: batched, grad: make([]float64, net.NumParams()), warn: warn}
 	if holdSet != nil {
-		if p.hold, err = train.NewScorer(net, hx, holdSet, workers); err != nil {
+		if p.hold, err = trainfit.NewScorer(net, hx, holdSet, workers); err != nil {
 			return nil, fmt.Errorf("diag: holdout rows: %w", err)
 		}
 	}

@@ -9,9 +9,9 @@ import (
 	"time"
 
 	"github.com/seine-ml/seine/data"
+	trainfit "github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
-	"github.com/seine-ml/seine/train"
 )
 
 // Defaults of CurveConfig.
@@ -148,7 +148,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	if hold == 0 {
 		hold = DefaultHoldout
 	}
-	if err := train.CheckSpec(s); err != nil {
+	if err := trainfit.CheckSpec(s); err != nil {
 		return nil, err
 	}
 	if err := checkSet(s, set); err != nil {

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"github.com/seine-ml/seine/data"
+	trainfit "github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
 	"github.com/seine-ml/seine/train"
@@ -189,7 +190,7 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrConfig, cfg.Holdout)
 	}
 	for _, sp := range specs {
-		if err := train.CheckSpec(sp); err != nil {
+		if err := trainfit.CheckSpec(sp); err != nil {
 			return nil, err
 		}
 		if err := checkSet(sp, set); err != nil {
@@ -415,7 +416,7 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 		if err != nil {
 			return fitted{}, fmt.Errorf("%w: %w", ErrConfig, err)
 		}
-		scr, err := train.NewScorer(net, x, part.set, fc.workers)
+		scr, err := trainfit.NewScorer(net, x, part.set, fc.workers)
 		if err != nil {
 			return fitted{}, err
 		}

@@ -632,7 +632,7 @@ func (p *parser) hidden(n *Network, v *yaml.Node) {
 			h.Units, _ = p.integer(u, path+".units")
 		}
 		if a, ok := p.require(f, c, path, "activation", "want one of "+hiddenNames); ok {
-			if act, ok := parseName(p, a, path+".activation", "activation", ParseActivation, hiddenNames); ok {
+			if act, ok := parseName(p, a, path+".activation", "activation", parseActivation, hiddenNames); ok {
 				h.Activation = act
 			}
 		}
@@ -682,7 +682,7 @@ func (p *parser) output(n *Network, v *yaml.Node) {
 		p.errorf(v, "output.classes", ErrMissingField, "missing classes or units (a list of class names, or a count)")
 	}
 	if a, ok := f["activation"]; ok {
-		if act, ok := parseName(p, a, "output.activation", "activation", ParseActivation, outputNames); ok {
+		if act, ok := parseName(p, a, "output.activation", "activation", parseActivation, outputNames); ok {
 			n.Output.Activation = act
 		}
 	}
@@ -737,7 +737,7 @@ func (p *parser) init(n *Network, v *yaml.Node) {
 	p.mark("init", v)
 	f := p.fields(v, "init", "scheme", "scale", "seed")
 	if x, ok := f["scheme"]; ok {
-		if s, ok := parseName(p, x, "init.scheme", "scheme", ParseScheme, schemeList); ok {
+		if s, ok := parseName(p, x, "init.scheme", "scheme", parseScheme, schemeList); ok {
 			if s == 0 {
 				s = GlorotUniform // reported; keep later checks quiet
 			}
@@ -808,8 +808,8 @@ func (p *parser) inputs(n *Network, v *yaml.Node) {
 			p.quiet[path] = true
 		}
 		if x, ok := f["type"]; ok {
-			t, ok := parseName(p, x, path+".type", "input type", ParseInputType, inputTypeList)
-			if _, known := ParseInputType(deref(x).Value); !ok || !known {
+			t, ok := parseName(p, x, path+".type", "input type", parseInputType, inputTypeList)
+			if _, known := parseInputType(deref(x).Value); !ok || !known {
 				p.untyped[path] = true
 			}
 			in.Type = t
@@ -821,7 +821,7 @@ func (p *parser) inputs(n *Network, v *yaml.Node) {
 			p.missing(in, x, path+".missing")
 		}
 		if x, ok := f["unknown"]; ok {
-			if r, ok := parseName(p, x, path+".unknown", "unknown rule", ParseUnknownRule, unknownList); ok {
+			if r, ok := parseName(p, x, path+".unknown", "unknown rule", parseUnknownRule, unknownList); ok {
 				in.Unknown = r
 			}
 		}
@@ -857,7 +857,7 @@ func (p *parser) missing(in *Input, x *yaml.Node, field string) {
 	if !ok {
 		return
 	}
-	r, known := ParseMissingRule(word)
+	r, known := parseMissingRule(word)
 	if !known {
 		hint := ""
 		if word == "constant" {

@@ -34,8 +34,8 @@ func (a Activation) String() string {
 	return fmt.Sprintf("Activation(%d)", int(a))
 }
 
-// ParseActivation returns the activation with the given spec name.
-func ParseActivation(name string) (Activation, bool) {
+// parseActivation returns the activation with the given spec name.
+func parseActivation(name string) (Activation, bool) {
 	for i, n := range activationNames {
 		if i > 0 && n == name {
 			return Activation(i), true
@@ -95,8 +95,8 @@ func (s Scheme) String() string {
 	return fmt.Sprintf("Scheme(%d)", int(s))
 }
 
-// ParseScheme returns the scheme with the given spec name.
-func ParseScheme(name string) (Scheme, bool) {
+// parseScheme returns the scheme with the given spec name.
+func parseScheme(name string) (Scheme, bool) {
 	for i, n := range schemeNames {
 		if i > 0 && n == name {
 			return Scheme(i), true
@@ -123,8 +123,8 @@ func (t InputType) String() string {
 	return fmt.Sprintf("InputType(%d)", int(t))
 }
 
-// ParseInputType returns the input type with the given spec name.
-func ParseInputType(name string) (InputType, bool) {
+// parseInputType returns the input type with the given spec name.
+func parseInputType(name string) (InputType, bool) {
 	for i, n := range inputTypeNames {
 		if n == name {
 			return InputType(i), true
@@ -157,10 +157,10 @@ func (r MissingRule) String() string {
 	return fmt.Sprintf("MissingRule(%d)", int(r))
 }
 
-// ParseMissingRule returns the missing rule with the given spec word:
+// parseMissingRule returns the missing rule with the given spec word:
 // refuse, mean, median, mode or level. "constant" is not a spec word (the
 // spec writes the constant itself), so it is not accepted.
-func ParseMissingRule(word string) (MissingRule, bool) {
+func parseMissingRule(word string) (MissingRule, bool) {
 	for i, n := range missingNames {
 		if n == word && MissingRule(i) != MissingConstant {
 			return MissingRule(i), true
@@ -188,8 +188,8 @@ func (r UnknownRule) String() string {
 	return fmt.Sprintf("UnknownRule(%d)", int(r))
 }
 
-// ParseUnknownRule returns the unknown rule with the given spec word.
-func ParseUnknownRule(word string) (UnknownRule, bool) {
+// parseUnknownRule returns the unknown rule with the given spec word.
+func parseUnknownRule(word string) (UnknownRule, bool) {
 	for i, n := range unknownNames {
 		if n == word {
 			return UnknownRule(i), true
@@ -337,9 +337,9 @@ func (n *Network) Input(i int) Input {
 	return n.Types[i]
 }
 
-// MissingTokensOrDefault returns MissingTokens, or DefaultMissingTokens
+// missingTokensOrDefault returns MissingTokens, or DefaultMissingTokens
 // when it is nil. The caller must not modify the result.
-func (n *Network) MissingTokensOrDefault() []string {
+func (n *Network) missingTokensOrDefault() []string {
 	if n.MissingTokens == nil {
 		return DefaultMissingTokens
 	}

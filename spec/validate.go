@@ -123,7 +123,7 @@ func (n *Network) check(lim Limits) []*Error {
 	errs = append(errs, n.checkTokens()...)
 	if n.Types != nil {
 		tokens := make(map[string]bool)
-		for _, t := range n.MissingTokensOrDefault() {
+		for _, t := range n.missingTokensOrDefault() {
 			tokens[t] = true
 		}
 		for i, in := range n.Types {

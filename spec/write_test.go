@@ -149,7 +149,7 @@ func TestRoundTripDefaults(t *testing.T) {
 	for i := range n.Inputs {
 		assert.Equal(t, n.Input(i), m.Input(i))
 	}
-	assert.Equal(t, n.MissingTokensOrDefault(), m.MissingTokensOrDefault())
+	assert.Equal(t, n.missingTokensOrDefault(), m.missingTokensOrDefault())
 }
 
 // TestWriteTyped pins the canonical form of typed inputs, missing tokens

@@ -15,6 +15,7 @@ import (
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/score"
 	"github.com/seine-ml/seine/spec"
@@ -266,6 +267,6 @@ train:
 	t.Logf("rare-class recall: unweighted %.3f, balanced %.3f", r0, r1)
 	assert.GreaterOrEqual(t, r1-r0, 0.2)
 
-	w, _ := ClassWeights(weighted, set)
+	w, _ := fit.ClassWeights(weighted, set)
 	assert.InDeltaSlice(t, []float64{375.0 / (2 * 357), 375.0 / (2 * 18)}, w, 1e-12)
 }

@@ -4,7 +4,7 @@ import "flag"
 
 // The flags several commands share, defined once with one wording each
 // (issue 14). What differs between commands (what -json writes, what -plot
-// draws, what -seed seeds) is passed in and completes the same sentence.
+// draws) is passed in and completes the same sentence.
 
 // specFlag defines -spec.
 func specFlag(fs *flag.FlagSet) *string {
@@ -37,11 +37,6 @@ func modelFlag(fs *flag.FlagSet) *string {
 // iterationsFlag defines -iterations.
 func iterationsFlag(fs *flag.FlagSet) *int {
 	return fs.Int("iterations", 0, "iteration limit of each fit, epochs for momentum and adam (default the spec's train.iterations, else 10000)")
-}
-
-// seedFlag defines -seed with its default and what it seeds.
-func seedFlag(fs *flag.FlagSet, def uint64, seeds string) *uint64 {
-	return fs.Uint64("seed", def, "seed of "+seeds)
 }
 
 // standardizeFlag defines -standardize.

@@ -12,10 +12,10 @@ import (
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
-	"github.com/seine-ml/seine/train"
 )
 
 // gradTolerance is the largest relative error that passes. optim's
@@ -76,7 +76,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := train.CheckSpec(s); err != nil {
+	if err := fit.CheckSpec(s); err != nil {
 		return fmt.Errorf("%s: %w", *specPath, err)
 	}
 	var x, y *mat.Dense
@@ -87,7 +87,7 @@ func runGradientCheck(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 		sub := firstRows(set, *rows)
-		prep, err := train.Prepare(s, sub, nil, false)
+		prep, err := fit.Prepare(s, sub, nil, false)
 		if err != nil {
 			return prefixLines(*dataPath, err)
 		}

@@ -11,11 +11,11 @@ import (
 	"unicode"
 
 	"github.com/seine-ml/seine/encode"
+	"github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/onnx"
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
-	"github.com/seine-ml/seine/train"
 )
 
 // defaultInspectRows is the number of rows the memory estimate assumes for
@@ -141,7 +141,7 @@ func optimState(o spec.Optimizer) (string, int) {
 	if o == 0 {
 		o = spec.LBFGS
 	}
-	m, err := train.MethodFor(o, 0, 0)
+	m, err := fit.MethodFor(o, 0, 0)
 	if err != nil {
 		return o.String(), 0
 	}
