@@ -70,7 +70,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	rocFile := fs.String("roc", "", "also draw the ROC curves, operating points marked, to `FILE`.png or FILE.svg")
 	prFile := fs.String("pr", "", "also draw the precision–recall curves, operating points marked, to `FILE`.png or FILE.svg")
 	relFile := fs.String("reliability", "", "also draw the reliability diagram to `FILE`.png or FILE.svg")
-	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class counts as present (default the model's operating thresholds, else 0.5)")
+	threshold := thresholdFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -80,8 +80,8 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if *dataPath == "" {
 		return usagef("-data is required")
 	}
-	if *threshold != 0 && !(*threshold > 0 && *threshold < 1) {
-		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
+	if err := checkThreshold(*threshold); err != nil {
+		return err
 	}
 	var format chart.Format
 	if *plot != "" {
@@ -105,11 +105,7 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
-	m, err := loadModel(ctx, *modelPath)
-	if err != nil {
-		return err
-	}
-	thresholds, err := decisionThresholds(m, *threshold, *modelPath)
+	m, thresholds, err := loadDecidingModel(ctx, *modelPath, *threshold)
 	if err != nil {
 		return err
 	}

@@ -58,3 +58,17 @@ func plotFileFlag(fs *flag.FlagSet, what string) *string {
 func quietFlag(fs *flag.FlagSet) *bool {
 	return fs.Bool("quiet", false, "no progress on standard error")
 }
+
+// thresholdFlag defines -threshold, the operating threshold override of
+// sigmoid outputs.
+func thresholdFlag(fs *flag.FlagSet) *float64 {
+	return fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at or above which a class is decided (default the model's operating thresholds, else 0.5)")
+}
+
+// checkThreshold reports a -threshold outside (0, 1); 0 means unset.
+func checkThreshold(t float64) error {
+	if t != 0 && !(t > 0 && t < 1) {
+		return usagef("-threshold %g: want a probability in (0, 1)", t)
+	}
+	return nil
+}

@@ -51,7 +51,7 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	digits := fs.Int("digits", 6, "significant `DIGITS` of the probabilities; 0 writes the shortest form that reads back to the same float64")
 	label := labelFlag(fs, true)
 	keep := fs.String("keep", "", "comma-separated `COLUMNS` copied from the input to the output, e.g. id,ts, to join rows back")
-	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class is predicted (default the model's operating thresholds, else 0.5)")
+	threshold := thresholdFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -62,19 +62,16 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 		return usagef("-data is required")
 	case *digits < 0 || *digits > 17:
 		return usagef("-digits %d: want 1 to 17 significant digits, or 0 for exact", *digits)
-	case *threshold != 0 && !(*threshold > 0 && *threshold < 1):
-		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
+	}
+	if err := checkThreshold(*threshold); err != nil {
+		return err
 	}
 	if *out != "" {
 		if err := refuseOverwrite("-out", *out, "model", *modelPath, "data", *dataPath); err != nil {
 			return err
 		}
 	}
-	m, err := loadModel(ctx, *modelPath)
-	if err != nil {
-		return err
-	}
-	thresholds, err := decisionThresholds(m, *threshold, *modelPath)
+	m, thresholds, err := loadDecidingModel(ctx, *modelPath, *threshold)
 	if err != nil {
 		return err
 	}
@@ -188,6 +185,21 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// loadDecidingModel loads the model at path and the operating thresholds
+// that predict, evaluate and report apply to its probabilities (see
+// decisionThresholds).
+func loadDecidingModel(ctx context.Context, path string, override float64) (*nn.Model, []float64, error) {
+	m, err := loadModel(ctx, path)
+	if err != nil {
+		return nil, nil, err
+	}
+	th, err := decisionThresholds(m, override, path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return m, th, nil
 }
 
 // decisionThresholds returns the operating thresholds that predict and

@@ -59,7 +59,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	label := labelFlag(fs, true)
 	repeats := fs.Int("repeats", diag.DefaultRepeats, "shuffles of each input for its importance, `N` ≥ 1")
 	seed := fs.Uint64("seed", 1, "seed of the shuffles")
-	threshold := fs.Float64("threshold", 0, "sigmoid outputs only: probability in (0, 1) at which a class counts as present (default the model's operating thresholds, else 0.5)")
+	threshold := thresholdFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -72,8 +72,9 @@ func runReport(ctx context.Context, e *env, args []string) error {
 		return usagef("-out is required")
 	case *repeats < 1:
 		return usagef("-repeats %d: want at least 1", *repeats)
-	case *threshold != 0 && !(*threshold > 0 && *threshold < 1):
-		return usagef("-threshold %g: want a probability in (0, 1)", *threshold)
+	}
+	if err := checkThreshold(*threshold); err != nil {
+		return err
 	}
 	if err := refuseOverwrite("-out", *out, "model", *modelPath, "data", *dataPath); err != nil {
 		return err
@@ -81,11 +82,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err := checkWritable("-out", *out); err != nil {
 		return err
 	}
-	m, err := loadModel(ctx, *modelPath)
-	if err != nil {
-		return err
-	}
-	thresholds, err := decisionThresholds(m, *threshold, *modelPath)
+	m, thresholds, err := loadDecidingModel(ctx, *modelPath, *threshold)
 	if err != nil {
 		return err
 	}
