@@ -387,6 +387,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	}
 
 	// Data rows.
+	pool := map[string]string{} // class names, interned
 	var (
 		x      = make([]float64, 0, 64*nf)
 		xr     = make([]float64, nf) // the current row, in feature order
@@ -424,6 +425,9 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 						note(j, ErrUnknownClass, nil, format, args...)
 					})
 					if !failed {
+						for i, c := range set {
+							set[i] = intern(pool, c)
+						}
 						multi = append(multi, set)
 					}
 					continue
@@ -438,7 +442,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 					note(j, ErrUnknownClass, nil, "%s is not one of the classes %s%s", shown(cell), classList(opt.Classes), hint)
 				}
 				if !failed {
-					labels = append(labels, cell)
+					labels = append(labels, intern(pool, cell))
 				}
 				continue
 			}
@@ -782,4 +786,17 @@ func separatorHint(names []string, comma rune) string {
 		}
 	}
 	return ""
+}
+
+// intern returns a copy of a class name that does not hold on to the line
+// it was read from (a cell is a slice of the whole record's text), shared
+// by every row with that name: the label column of a million rows costs
+// its distinct names, not a million lines.
+func intern(pool map[string]string, name string) string {
+	if v, ok := pool[name]; ok {
+		return v
+	}
+	v := strings.Clone(name)
+	pool[v] = v
+	return v
 }

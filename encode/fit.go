@@ -371,22 +371,25 @@ func (e *Encoder) CheckSpec(s *spec.Network) error {
 // an unknown level under refuse) is reported with the row's line in the
 // file and the input's name: one as a *data.Error, several as a
 // *data.ErrorList that lists the first data.MaxListed and counts the rest.
+// Rows are coded one at a time, so no coded copy of the set is made.
 func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
-	coded, err := e.CodeSet(set)
+	r, err := e.checkSet(set)
 	if err != nil {
 		return nil, err
 	}
-	r, _ := coded.Dims()
 	out := mat.NewDense(r, e.width, nil)
 	var errs errorList
-	for i := range r {
-		u := e.Expand(out.RawRowView(i), coded.RawRowView(i))
+	err = e.codeRows(set, &errs, func(i int, coded []float64) {
+		u := e.Expand(out.RawRowView(i), coded)
 		for j := range e.inputs {
 			in := &e.inputs[j]
 			if in.Type == spec.NumberInput && math.IsInf(u[in.Offset], 0) {
-				errs.add(set, i, in.Name, describe(ErrNotFinite, "%v scales to %v: the value is too far from the training rows' (mean %.6g, scale %.6g) to be represented", coded.At(i, j), u[in.Offset], in.Mean, in.Scale))
+				errs.add(set, i, in.Name, describe(ErrNotFinite, "%v scales to %v: the value is too far from the training rows' (mean %.6g, scale %.6g) to be represented", coded[j], u[in.Offset], in.Mean, in.Scale))
 			}
 		}
+	})
+	if err != nil {
+		return nil, err
 	}
 	if err := errs.err(); err != nil {
 		return nil, err
@@ -399,16 +402,40 @@ func (e *Encoder) EncodeSet(set *data.Set) (*mat.Dense, error) {
 // model's float64 prediction methods take. Problems are reported as by
 // EncodeSet.
 func (e *Encoder) CodeSet(set *data.Set) (*mat.Dense, error) {
+	r, err := e.checkSet(set)
+	if err != nil {
+		return nil, err
+	}
+	out := mat.NewDense(r, len(e.inputs), nil)
+	var errs errorList
+	if err := e.codeRows(set, &errs, func(i int, coded []float64) { copy(out.RawRowView(i), coded) }); err != nil {
+		return nil, err
+	}
+	if err := errs.err(); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// checkSet reports a set whose columns are not e's, and returns its rows.
+func (e *Encoder) checkSet(set *data.Set) (int, error) {
 	if set == nil || set.Rows() == 0 {
-		return nil, fmt.Errorf("%w: no rows", ErrNoSet)
+		return 0, fmt.Errorf("%w: no rows", ErrNoSet)
 	}
 	r, c := set.X.Dims()
 	if c != len(e.inputs) {
-		return nil, fmt.Errorf("%w: the set has %d input columns, the model %d inputs", ErrColumns, c, len(e.inputs))
+		return 0, fmt.Errorf("%w: the set has %d input columns, the model %d inputs", ErrColumns, c, len(e.inputs))
 	}
 	if set.Features != nil && !slices.Equal(set.Features, e.Names()) {
-		return nil, fmt.Errorf("%w: the set's columns %q are not the model's inputs %q", ErrColumns, set.Features, e.Names())
+		return 0, fmt.Errorf("%w: the set's columns %q are not the model's inputs %q", ErrColumns, set.Features, e.Names())
 	}
+	return r, nil
+}
+
+// codeRows codes each row of set in turn and hands it to emit (the slice
+// is reused); problems go to errs, and a row with one is not emitted.
+func (e *Encoder) codeRows(set *data.Set, errs *errorList, emit func(i int, coded []float64)) error {
+	r, c := set.X.Dims()
 	// For each category, the code of each of the file's texts: a level
 	// index, −1 for an unknown level under ignore, −2 under refuse.
 	trans := make([][]float64, c)
@@ -419,7 +446,7 @@ func (e *Encoder) CodeSet(set *data.Set) (*mat.Dense, error) {
 			texts = set.Texts[j]
 		}
 		if (in.Type == spec.CategoryInput) != (texts != nil) {
-			return nil, fmt.Errorf("%w: input %q is a %v but its column was read as %s", ErrColumns, in.Name, in.Type, map[bool]string{true: "text", false: "numbers"}[texts != nil])
+			return fmt.Errorf("%w: input %q is a %v but its column was read as %s", ErrColumns, in.Name, in.Type, map[bool]string{true: "text", false: "numbers"}[texts != nil])
 		}
 		if texts == nil {
 			continue
@@ -437,10 +464,9 @@ func (e *Encoder) CodeSet(set *data.Set) (*mat.Dense, error) {
 			}
 		}
 	}
-	out := mat.NewDense(r, c, nil)
-	var errs errorList
+	row := make([]float64, c)
 	for i := range r {
-		row := out.RawRowView(i)
+		ok := true
 		for j := range c {
 			v := set.X.At(i, j)
 			var err error
@@ -455,14 +481,15 @@ func (e *Encoder) CodeSet(set *data.Set) (*mat.Dense, error) {
 			}
 			if err != nil {
 				errs.add(set, i, e.inputs[j].Name, err)
+				ok = false
 			}
 			row[j] = v
 		}
+		if ok {
+			emit(i, row)
+		}
 	}
-	if err := errs.err(); err != nil {
-		return nil, err
-	}
-	return out, nil
+	return nil
 }
 
 // Placeholder returns s when every category input has its levels, and

@@ -9,6 +9,7 @@ package fit
 import (
 	"errors"
 	"fmt"
+	"math"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -152,8 +153,13 @@ func NewScorer(net *nn.Net, x *mat.Dense, set *data.Set, workers int) (*Scorer, 
 	if err != nil {
 		return nil, err
 	}
-	return &Scorer{net: net, obj: obj, x: x, set: set, ws: net.NewWorkspace(set.Rows())}, nil
+	return &Scorer{net: net, obj: obj, x: x, set: set, ws: net.NewWorkspace(min(set.Rows(), scoreBlock))}, nil
 }
+
+// scoreBlock is the number of rows a Scorer's forward passes take at a
+// time, so that its workspace stays small whatever the number of rows (a
+// workspace for every row of a large set cost more than the data).
+const scoreBlock = 2048
 
 // Close stops the goroutines of the Scorer's evaluations; it must not be
 // used after.
@@ -168,18 +174,26 @@ func (s *Scorer) Measure(params []float64) (cost, acc float64) {
 // Accuracy returns the share of rows classified right (exact-set match at
 // 0.5 for multi-label rows) by params.
 func (s *Scorer) Accuracy(params []float64) float64 {
-	out := s.net.Forward(s.ws, params, s.x)
-	if _, c := out.Dims(); c == 1 {
-		// Binary sigmoid: the unit is the probability p of class 1, and the
-		// model predicts class 1 when p > 1−p (class 0 on a tie, as argmax).
-		m, _ := out.Dims()
-		correct := 0
-		for i := 0; i < m; i++ {
-			if (out.At(i, 0) > 0.5) == (s.set.Y.At(i, 1) > 0.5) {
-				correct++
+	r, c := s.x.Dims()
+	_, k := s.set.Y.Dims()
+	correct := 0.0
+	for start := 0; start < r; start += scoreBlock {
+		end := min(start+scoreBlock, r)
+		out := s.net.Forward(s.ws, params, s.x.Slice(start, end, 0, c))
+		y := s.set.Y.Slice(start, end, 0, k)
+		if _, units := out.Dims(); units == 1 {
+			// Binary sigmoid: the unit is the probability p of class 1,
+			// and the model predicts class 1 when p > 1−p (class 0 on a
+			// tie, as argmax).
+			for i := 0; i < end-start; i++ {
+				if (out.At(i, 0) > 0.5) == (y.At(i, 1) > 0.5) {
+					correct++
+				}
 			}
+			continue
 		}
-		return float64(correct) / float64(m)
+		// score.Accuracy's share of the block, times its rows: a count.
+		correct += math.Round(score.Accuracy(out, y, s.set.Multilabel) * float64(end-start))
 	}
-	return score.Accuracy(out, s.set.Y, s.set.Multilabel)
+	return correct / float64(r)
 }
