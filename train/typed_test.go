@@ -77,7 +77,7 @@ var voteNames = []string{"handicapped-infants", "water-project-cost-sharing", "a
 // UCI Congressional Voting Records (Schlimmer 1987; data/testdata/votes.csv):
 // 16 category inputs with `?` cells. Over 5 stratified folds the accuracy
 // must reach 0.93 with `?` as a level of its own and with the mode filled in.
-// For scale: scikit-learn's MLPClassifier with one-hot encoding and mode
+// For scale: scikit-learn's multilayer classifier with one-hot encoding and mode
 // imputation reaches 0.956 on this file (measured, as the issue reports);
 // 0.93 leaves about 1.3 binomial standard deviations of 435 rows
 // (√(0.95·0.05/435) ≈ 0.010) twice over for a different net and optimizer.
@@ -99,7 +99,7 @@ func TestVotesCrossValidated(t *testing.T) {
 // UCI Breast Cancer Wisconsin, Original (Wolberg & Mangasarian 1990;
 // data/testdata/breast-cancer-wisconsin.csv): nine scores, 16 `?` cells in
 // bare_nuclei filled by the training median; `id` is in the file but not an
-// input. 5-fold accuracy must reach 0.95 (MLPClassifier with median
+// input. 5-fold accuracy must reach 0.95 (scikit-learn's multilayer classifier with median
 // imputation: 0.959, measured, as the issue reports).
 func TestBreastCancerCrossValidated(t *testing.T) {
 	if testing.Short() {
