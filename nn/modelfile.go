@@ -18,6 +18,7 @@ import (
 
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/internal/atomicfile"
+	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -369,7 +370,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, f.Decision, raw)
 	s := m.Summary
 	f.Summary = fileSummary{
-		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status,
+		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status.String(),
 		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
 		HoldoutRows: s.HoldoutRows, HoldoutCost: nullable(s.HoldoutCost), HoldoutAccuracy: nullable(s.HoldoutAccuracy),
 		Seed: s.Seed, Library: s.Library,
@@ -476,8 +477,12 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 		m.Decision = *f.Decision
 	}
 	fs := f.Summary
+	status, ok := optim.ParseStatus(fs.Status)
+	if !ok {
+		return nil, fmt.Errorf("%w: summary.status is %q, not a status of a run", ErrFormat, fs.Status)
+	}
 	m.Summary = Summary{
-		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: fs.Status,
+		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: status,
 		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
 		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),
 		Seed: fs.Seed, Library: fs.Library,

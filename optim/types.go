@@ -136,6 +136,26 @@ var statusNames = [...]string{
 	Stopped:          "Stopped",
 }
 
+// Running is the status of a run that has not stopped: never in a Result,
+// but the status of a model saved as a checkpoint during a run.
+const Running = running
+
+// ParseStatus returns the status with the given name (as String writes
+// it); "Checkpoint", which model files of earlier versions wrote for
+// checkpoints, and "" read as Running.
+func ParseStatus(name string) (Status, bool) {
+	switch name {
+	case "", "Checkpoint":
+		return Running, true
+	}
+	for i, n := range statusNames {
+		if n == name {
+			return Status(i), true
+		}
+	}
+	return 0, false
+}
+
 // String returns the name of the status, e.g. "GradConverged".
 func (s Status) String() string {
 	if s < 0 || int(s) >= len(statusNames) {

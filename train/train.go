@@ -195,7 +195,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 			if err == nil {
 				m.Label = set.Label
 				m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
-					Status: "Checkpoint", Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
+					Status: optim.Running, Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
 					TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()}
 				err = ck.Save(m)
 			}
@@ -253,7 +253,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 		Iterations:   run.Iterations,
 		Evaluations:  run.Evaluations,
 		Seconds:      time.Since(start).Seconds(),
-		Status:       run.Status.String(),
+		Status:       run.Status,
 		Cost:         obj.Eval(nil, params),
 		TrainRows:    set.Rows(),
 		Seed:         seed,

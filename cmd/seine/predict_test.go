@@ -17,6 +17,7 @@ import (
 
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/optim"
 )
 
 // TestPredictDigits: by default probabilities have 6 significant digits
@@ -281,7 +282,7 @@ func TestCheckpointResume(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c.Summary.Iterations != 20 || c.Summary.Status != "Checkpoint" {
+	if c.Summary.Iterations != 20 || c.Summary.Status != optim.Running {
 		t.Errorf("checkpoint summary %+v", c.Summary)
 	}
 	r = seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", out, "-iterations", "1", "-resume", ck)

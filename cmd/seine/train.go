@@ -364,24 +364,25 @@ func checkpointer(path string, every int, pr *progress, stderr io.Writer) train.
 	}}
 }
 
-// stopReasons says in words why a run stopped, by optim.Status name.
-var stopReasons = map[string]string{
-	"GradConverged":    "converged: the gradient norm fell below the tolerance",
-	"CostConverged":    "converged: the cost stopped changing",
-	"IterationLimit":   "reached the iteration limit",
-	"EvaluationLimit":  "reached the evaluation limit",
-	"TimeLimit":        "reached the time limit",
-	"Cancelled":        "interrupted",
-	"Diverged":         "diverged",
-	"LineSearchFailed": "the line search found no lower cost (usually a minimum up to rounding)",
-	"Stopped":          "early stop: the holdout cost stopped falling (-patience)",
+// stopReasons says in words why a run stopped.
+var stopReasons = map[optim.Status]string{
+	optim.Running:          "not stopped: a checkpoint taken during the run",
+	optim.GradConverged:    "converged: the gradient norm fell below the tolerance",
+	optim.CostConverged:    "converged: the cost stopped changing",
+	optim.IterationLimit:   "reached the iteration limit",
+	optim.EvaluationLimit:  "reached the evaluation limit",
+	optim.TimeLimit:        "reached the time limit",
+	optim.Cancelled:        "interrupted",
+	optim.Diverged:         "diverged",
+	optim.LineSearchFailed: "the line search found no lower cost (usually a minimum up to rounding)",
+	optim.Stopped:          "early stop: the holdout cost stopped falling (-patience)",
 }
 
-func stopReason(status string) string {
+func stopReason(status optim.Status) string {
 	if r, ok := stopReasons[status]; ok {
 		return r
 	}
-	return status
+	return status.String()
 }
 
 // writeTrainSummary writes the block that ends a training run.

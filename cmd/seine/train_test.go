@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/seine-ml/seine/nn"
+	"github.com/seine-ml/seine/optim"
 )
 
 // TestTrainErrors checks that bad input ends with status 1 and one line
@@ -193,7 +194,7 @@ func TestTrainInterrupt(t *testing.T) {
 	if err != nil {
 		t.Fatalf("the saved model does not load: %v", err)
 	}
-	if m.Summary.Iterations < 1 || m.Summary.Status != "Cancelled" {
+	if m.Summary.Iterations < 1 || m.Summary.Status != optim.Cancelled {
 		t.Errorf("summary %+v", m.Summary)
 	}
 	if !strings.Contains(stdout.String(), "stopped       interrupted") {

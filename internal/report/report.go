@@ -377,7 +377,7 @@ func training(m *nn.Model) []kv {
 	}
 	out := []kv{
 		{"method", orDash(sm.Method)},
-		{"stopped", orDash(sm.Status)},
+		{"stopped", orDash(sm.Status.String())},
 		{"iterations", strconv.Itoa(sm.Iterations)},
 		{"evaluations", strconv.FormatFloat(sm.Evaluations, 'g', 6, 64)},
 		{"time", fmt.Sprintf("%.2f s", sm.Seconds)},
