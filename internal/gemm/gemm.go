@@ -300,23 +300,11 @@ func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c
 				x := a.Data[i*ai+pc : i*ai+pc+kk]
 				for ; j+4 <= n; j += 4 {
 					t0, t1, t2, t3 := dot4(fma, x, b.Data[j*bj+pc:], bj)
-					d := crow[j : j+4 : j+4]
-					if add {
-						d[0] += t0
-						d[1] += t1
-						d[2] += t2
-						d[3] += t3
-					} else {
-						d[0], d[1], d[2], d[3] = t0, t1, t2, t3
-					}
+					put4(crow[j:j+4:j+4], add, t0, t1, t2, t3)
 				}
 				for ; j < n; j++ {
 					t := dot1(fma, x, b.Data[j*bj+pc:])
-					if add {
-						crow[j] += t
-					} else {
-						crow[j] = t
-					}
+					put1(&crow[j], add, t)
 				}
 			}
 			for ; j+4 <= n; j += 4 {
@@ -340,15 +328,7 @@ func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c
 						t3 += float64(x * y[3*bj])
 					}
 				}
-				d := crow[j : j+4 : j+4]
-				if add {
-					d[0] += t0
-					d[1] += t1
-					d[2] += t2
-					d[3] += t3
-				} else {
-					d[0], d[1], d[2], d[3] = t0, t1, t2, t3
-				}
+				put4(crow[j:j+4:j+4], add, t0, t1, t2, t3)
 			}
 			for ; j < n; j++ {
 				t := 0.0
@@ -363,14 +343,32 @@ func small(fma, tA, tB bool, alpha float64, a, b blas64.General, beta float64, c
 						t += float64(x * b.Data[p*bp+j*bj])
 					}
 				}
-				if add {
-					crow[j] += t
-				} else {
-					crow[j] = t
-				}
+				put1(&crow[j], add, t)
 			}
 		}
 	}
+}
+
+// put4 adds t0…t3 to d[0:4] when add, and stores them otherwise.
+func put4(d []float64, add bool, t0, t1, t2, t3 float64) {
+	d = d[:4:4]
+	if add {
+		d[0] += t0
+		d[1] += t1
+		d[2] += t2
+		d[3] += t3
+		return
+	}
+	d[0], d[1], d[2], d[3] = t0, t1, t2, t3
+}
+
+// put1 is put4 for one element.
+func put1(d *float64, add bool, t float64) {
+	if add {
+		*d += t
+		return
+	}
+	*d = t
 }
 
 // dot4 returns the four sums Σ_p x_p·y[r·ld + p], r = 0…3, each from 0 in
