@@ -29,6 +29,8 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+
+	"github.com/seine-ml/seine/internal/atomicfile"
 )
 
 // features lists the columns in file order, with what each one measures.
@@ -66,13 +68,7 @@ func main() {
 		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
 		os.Exit(2)
 	}
-	f, err := os.Create(*out)
-	if err == nil {
-		err = write(f, *rows, *seed)
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-	}
+	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
 	if err != nil {
 		fmt.Fprintln(os.Stderr, "gen:", err)
 		os.Exit(1)

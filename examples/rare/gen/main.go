@@ -25,6 +25,8 @@ import (
 	"math/rand/v2"
 	"os"
 	"strconv"
+
+	"github.com/seine-ml/seine/internal/atomicfile"
 )
 
 // takeoverShare is the share of rows that are takeovers.
@@ -155,13 +157,7 @@ func main() {
 		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
 		os.Exit(2)
 	}
-	f, err := os.Create(*out)
-	if err == nil {
-		err = write(f, *rows, *seed)
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-	}
+	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
 	if err != nil {
 		fmt.Fprintln(os.Stderr, "gen:", err)
 		os.Exit(1)

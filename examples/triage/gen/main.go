@@ -24,6 +24,8 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+
+	"github.com/seine-ml/seine/internal/atomicfile"
 )
 
 // features lists the number columns in file order, with what each one
@@ -226,21 +228,7 @@ func main() {
 		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
 		os.Exit(2)
 	}
-	tmp, err := os.CreateTemp(filepath.Dir(*out), ".sessions-*.csv")
-	if err == nil {
-		err = tmp.Chmod(0o644)
-	}
-	if err == nil {
-		err = write(tmp, *rows, *seed)
-		if cerr := tmp.Close(); err == nil {
-			err = cerr
-		}
-		if err == nil {
-			err = os.Rename(tmp.Name(), *out)
-		} else {
-			os.Remove(tmp.Name())
-		}
-	}
+	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
 	if err != nil {
 		fmt.Fprintln(os.Stderr, "gen:", err)
 		os.Exit(1)
