@@ -33,11 +33,12 @@ type CSVOptions struct {
 	// byte order.
 	Classes []string
 	// Features picks feature columns by name, in this order; a name absent
-	// from the header is an error naming it. nil takes every column but the
-	// label, in file order.
+	// from the header is an error naming it. nil (with Columns nil) takes
+	// every column but the label, in file order.
 	Features []string
-	// Inputs, when > 0 and Features is nil, is the number of feature columns
-	// the file must have. When Features is set it must equal len(Features).
+	// Inputs, when > 0 and Features and Columns are nil, is the number of
+	// feature columns the file must have. When Features or Columns is set it
+	// must equal its length.
 	Inputs int
 	// Multilabel says label cells list classes separated by '|'; an empty
 	// cell is a row with no class.
@@ -682,14 +683,13 @@ func (l *limitReader) Read(p []byte) (int, error) {
 	return n, err
 }
 
-// parseNumber parses a feature cell, returning nil or the sentinel of the
-// problem.
+// parseNumber parses a feature cell, already trimmed of spaces, returning
+// nil or the sentinel of the problem.
 func parseNumber(cell string) (float64, error) {
-	t := strings.TrimSpace(cell)
-	if t == "" {
+	if cell == "" {
 		return 0, ErrEmptyField
 	}
-	v, err := strconv.ParseFloat(t, 64)
+	v, err := strconv.ParseFloat(cell, 64)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
 			return 0, ErrNotFinite // overflow to ±Inf

@@ -43,7 +43,7 @@
 // Columns named in CSVOptions.Keep (an id, a timestamp) are copied as text
 // to Set.Kept, one row of len(Keep) strings per data row, to join results
 // back to the file; a kept column may also be a feature or the label.
-// Subset, Split and Folds carry Texts, Kept and Label to the sets they make.
+// Subset and Split carry Texts, Kept and Label to the sets they make.
 //
 // # Errors
 //

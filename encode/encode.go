@@ -294,14 +294,7 @@ func (e *Encoder) Expand(dst, x []float64) []float64 {
 
 // isMissing reports whether the cell text t (spaces trimmed) is a missing
 // token.
-func (e *Encoder) isMissing(t string) bool {
-	for _, m := range e.tokens {
-		if t == m {
-			return true
-		}
-	}
-	return false
-}
+func (e *Encoder) isMissing(t string) bool { return slices.Contains(e.tokens, t) }
 
 // codeText codes the text t of input i; t is trimmed of spaces first.
 func (e *Encoder) codeText(i int, t string) (float64, error) {

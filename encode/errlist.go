@@ -37,13 +37,11 @@ func (l *errorList) add(set *data.Set, row int, name string, err error) {
 
 // err returns nil, the one problem (a *data.Error), or a *data.ErrorList.
 func (l *errorList) err() error {
-	switch len(l.list.Errors) {
-	case 0:
+	switch {
+	case len(l.list.Errors) == 0:
 		return nil
-	case 1:
-		if len(l.order) == 0 {
-			return l.list.Errors[0]
-		}
+	case len(l.list.Errors) == 1 && len(l.order) == 0:
+		return l.list.Errors[0]
 	}
 	for _, name := range l.order {
 		l.list.More = append(l.list.More, data.ColumnCount{Column: name, N: l.more[name]})

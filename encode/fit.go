@@ -90,10 +90,6 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 	if len(names) != c {
 		return nil, nil, fmt.Errorf("%w: %d column names for %d columns", ErrColumns, len(names), c)
 	}
-	tokens := s.MissingTokens
-	if tokens == nil {
-		tokens = spec.DefaultMissingTokens
-	}
 	inputs := make([]Input, c)
 	var numCols []int
 	col := make([]float64, r)
@@ -108,8 +104,8 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 		if set.Texts != nil {
 			texts = set.Texts[j]
 		}
-		if (t.Type == spec.CategoryInput) != (texts != nil) {
-			return nil, nil, fmt.Errorf("%w: input %q is a %v but its column was read as %s", ErrColumns, in.Name, t.Type, map[bool]string{true: "text", false: "numbers"}[texts != nil])
+		if err := checkRead(in.Name, t.Type, texts); err != nil {
+			return nil, nil, err
 		}
 		if t.Type == spec.CategoryInput {
 			if err := fitCategory(&in, t, col, texts); err != nil {
@@ -143,7 +139,7 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 			inputs[j].Mean, inputs[j].Scale = sc.Mean[k], sc.Scale[k]
 		}
 	}
-	e, err = New(inputs, tokens)
+	e, err = New(inputs, s.MissingTokens) // nil: New takes spec.DefaultMissingTokens
 	if err != nil {
 		return nil, nil, err
 	}
@@ -432,6 +428,19 @@ func (e *Encoder) checkSet(set *data.Set) (int, error) {
 	return r, nil
 }
 
+// checkRead reports a column read as text (texts != nil, see
+// data.Set.Texts) for a number input, or as numbers for a category.
+func checkRead(name string, t spec.InputType, texts []string) error {
+	if (t == spec.CategoryInput) == (texts != nil) {
+		return nil
+	}
+	read := "numbers"
+	if texts != nil {
+		read = "text"
+	}
+	return fmt.Errorf("%w: input %q is a %v but its column was read as %s", ErrColumns, name, t, read)
+}
+
 // codeRows codes each row of set in turn and hands it to emit (the slice
 // is reused); problems go to errs, and a row with one is not emitted.
 func (e *Encoder) codeRows(set *data.Set, errs *errorList, emit func(i int, coded []float64)) error {
@@ -445,8 +454,8 @@ func (e *Encoder) codeRows(set *data.Set, errs *errorList, emit func(i int, code
 		if set.Texts != nil {
 			texts = set.Texts[j]
 		}
-		if (in.Type == spec.CategoryInput) != (texts != nil) {
-			return fmt.Errorf("%w: input %q is a %v but its column was read as %s", ErrColumns, in.Name, in.Type, map[bool]string{true: "text", false: "numbers"}[texts != nil])
+		if err := checkRead(in.Name, in.Type, texts); err != nil {
+			return err
 		}
 		if texts == nil {
 			continue
@@ -467,8 +476,7 @@ func (e *Encoder) codeRows(set *data.Set, errs *errorList, emit func(i int, code
 	row := make([]float64, c)
 	for i := range r {
 		ok := true
-		for j := range c {
-			v := set.X.At(i, j)
+		for j, v := range set.X.RawRowView(i) {
 			var err error
 			switch {
 			case v != v:

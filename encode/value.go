@@ -10,35 +10,43 @@ import (
 // Value is one raw value of a record: a number, a text, or missing (the
 // zero Value). Build one with Number or Text.
 type Value struct {
-	kind byte // 0 missing, 1 number, 2 text
+	kind valueKind
 	num  float64
 	text string
 }
+
+type valueKind byte
+
+const (
+	kindMissing valueKind = iota // the zero Value
+	kindNumber
+	kindText
+)
 
 // Number returns a number value. NaN counts as missing.
 func Number(v float64) Value {
 	if math.IsNaN(v) {
 		return Value{}
 	}
-	return Value{kind: 1, num: v}
+	return Value{kind: kindNumber, num: v}
 }
 
 // Text returns a text value: a category's level, or a number's text (which
 // is parsed). A missing token (e.g. "" or "NA") counts as missing.
-func Text(s string) Value { return Value{kind: 2, text: s} }
+func Text(s string) Value { return Value{kind: kindText, text: s} }
 
 // Missing is the missing value, the zero Value.
 var Missing = Value{}
 
 // IsMissing reports whether v is the missing value.
-func (v Value) IsMissing() bool { return v.kind == 0 }
+func (v Value) IsMissing() bool { return v.kind == kindMissing }
 
 // String formats v for messages.
 func (v Value) String() string {
 	switch v.kind {
-	case 1:
+	case kindNumber:
 		return strconv.FormatFloat(v.num, 'g', -1, 64)
-	case 2:
+	case kindText:
 		return strconv.Quote(v.text)
 	}
 	return "missing"
@@ -58,9 +66,9 @@ func (e *FieldError) Unwrap() error { return e.Err }
 // code codes the value v of input i.
 func (e *Encoder) code(i int, v Value) (float64, error) {
 	switch v.kind {
-	case 1:
+	case kindNumber:
 		return e.codeNumber(i, v.num)
-	case 2:
+	case kindText:
 		return e.codeText(i, v.text)
 	}
 	return e.codeMissing(i)
