@@ -44,8 +44,9 @@ type Contender struct {
 // spec's iteration limit.
 type CompareConfig struct {
 	// Optimizers are the methods to compare by name; for each seed each
-	// gets a fresh value from trainfit.MethodFor with the spec's train.rate and
-	// the seed (which seeds the shuffles of momentum and Adam). nil with no
+	// gets a fresh method, as training would build it, with the spec's
+	// train.rate and the seed (which seeds the shuffles of momentum and
+	// Adam). nil with no
 	// Methods means gd, cg, lbfgs, momentum, adam.
 	Optimizers []spec.Optimizer
 	// Methods are further contenders given as values, run after the
@@ -319,12 +320,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 // times aside. Errors wrap ErrConfig and name the part by its index in
 // parts.
 func MergeComparisons(parts []*Comparison) (*Comparison, error) {
-	for i, p := range parts {
-		if p == nil {
-			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
-		}
-	}
-	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+	if err := checkShards(parts, func(p *Comparison) Shard { return p.Shard }); err != nil {
 		return nil, err
 	}
 	p0 := parts[0]
@@ -486,11 +482,13 @@ func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batc
 	}
 	batched, err := nn.NewObjective(net, x, trainSet.Y, nn.ObjectiveOptions{Batch: batch, Workers: workers, ClassWeights: weights})
 	if err != nil {
+		full.Close() // its goroutines must not outlive the failed call
 		return nil, fmt.Errorf("diag: training rows: %w", err)
 	}
 	p := &problem{net: net, full: full, batched: batched, grad: make([]float64, net.NumParams()), warn: warn}
 	if holdSet != nil {
 		if p.hold, err = trainfit.NewScorer(net, hx, holdSet, workers); err != nil {
+			p.close()
 			return nil, fmt.Errorf("diag: holdout rows: %w", err)
 		}
 	}

@@ -221,12 +221,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 // equals the whole curve's, bit for bit. Errors wrap ErrConfig and name
 // the part by its index in parts.
 func MergeCurves(parts []*Curve) (*Curve, error) {
-	for i, p := range parts {
-		if p == nil {
-			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
-		}
-	}
-	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+	if err := checkShards(parts, func(p *Curve) Shard { return p.Shard }); err != nil {
 		return nil, err
 	}
 	p0 := parts[0]

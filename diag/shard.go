@@ -77,16 +77,21 @@ type FitDone struct {
 	Elapsed time.Duration
 }
 
-// checkShards checks that parts, one per shard of the same N, hold each
-// shard 0 … N−1 exactly once; n(i) returns part i's Shard.
-func checkShards(count int, n func(i int) Shard) error {
-	if count == 0 {
+// checkShards checks that parts, none nil and one per shard of the same
+// N, hold each shard 0 … N−1 exactly once; shard returns a part's Shard.
+func checkShards[T any](parts []*T, shard func(*T) Shard) error {
+	for i, p := range parts {
+		if p == nil {
+			return fmt.Errorf("%w: part %d is nil", ErrConfig, i)
+		}
+	}
+	if len(parts) == 0 {
 		return fmt.Errorf("%w: no parts to merge", ErrConfig)
 	}
-	N := n(0).N
-	seen := make([]int, N)
-	for i := range count {
-		s := n(i)
+	N := shard(parts[0]).N
+	seen := make([]int, max(N, 0)) // N < 0 is reported for part 0 below
+	for i, p := range parts {
+		s := shard(p)
 		switch {
 		case s.Whole():
 			return fmt.Errorf("%w: part %d is a whole run, not a shard", ErrConfig, i)

@@ -215,6 +215,8 @@ func TestMergeErrors(t *testing.T) {
 		{"another sweep", []*Sweep{a, b, other}, "part 2 is a sweep"},
 		{"another N", []*Sweep{a, b, run([]float64{0, 1}, Shard{1, 2})}, "part 2 is shard 1/2, part 0 is one of 3"},
 		{"whole", []*Sweep{run([]float64{0, 1}, Shard{})}, "part 0 is a whole run"},
+		{"negative N", []*Sweep{{Shard: Shard{0, -1}}}, "part 0: shard 0/-1"}, // a hand-made part: no panic
+		{"nil part", []*Sweep{a, nil}, "part 1 is nil"},
 	} {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := MergeSweeps(tt.parts)

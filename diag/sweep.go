@@ -295,12 +295,7 @@ func (sw *Sweep) summarise() {
 // whole sweep's, bit for bit. Errors wrap ErrConfig and name the part by
 // its index in parts.
 func MergeSweeps(parts []*Sweep) (*Sweep, error) {
-	for i, p := range parts {
-		if p == nil {
-			return nil, fmt.Errorf("%w: part %d is nil", ErrConfig, i)
-		}
-	}
-	if err := checkShards(len(parts), func(i int) Shard { return parts[i].Shard }); err != nil {
+	if err := checkShards(parts, func(p *Sweep) Shard { return p.Shard }); err != nil {
 		return nil, err
 	}
 	p0 := parts[0]

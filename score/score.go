@@ -72,8 +72,12 @@ type Options struct {
 const floor = 1e-300
 
 // Evaluate scores the probabilities p against the targets y. classes names
-// the K columns. It returns an error when the shapes disagree or a value is
-// not a probability.
+// the K columns. Rows are decided by opt (the most probable class, or the
+// thresholds of opt.Threshold and opt.Thresholds); besides the decision
+// figures it fills in the one-vs-rest ranking figures of Rank and the
+// expected calibration error of ReliabilityDiagram, keeping their curves
+// and bins in Ranking and Reliability. It returns an error when the shapes
+// disagree, a threshold is outside [0, 1] or a value is not a probability.
 func Evaluate(p, y mat.Matrix, classes []string, opt Options) (*Report, error) {
 	m, k := p.Dims()
 	ym, yk := y.Dims()

@@ -105,12 +105,11 @@ func TestCrossEntropyFinite(t *testing.T) {
 	assert.InDelta(t, -math.Log(floor), r.CrossEntropy, 1e-9)
 }
 
-// Each warning of Warnings, on reports built by hand: 100 rows, 97 of
-// class "ok" and 3 of "fraud".
+// Each warning of Warnings, on reports of 100 rows built by hand, split
+// between class "ok" and a rarer class "fraud".
 func TestWarnings(t *testing.T) {
 	mk := func(acc float64, classes ...Class) *Report {
-		r := &Report{Rows: 100, Accuracy: acc, PerClass: classes}
-		return r
+		return &Report{Rows: 100, Accuracy: acc, PerClass: classes}
 	}
 	quiet := mk(0.99, Class{Name: "ok", Rows: 90, Precision: 0.99, Recall: 0.99}, Class{Name: "fraud", Rows: 10, Precision: 0.9, Recall: 0.8})
 	if w := Warnings(quiet, "holdout", false); len(w) != 0 {

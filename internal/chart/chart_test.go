@@ -87,7 +87,7 @@ func sampleCharts() []chartCase {
 // (rounding half up), 10 cm → 590.6 → 591 px.
 func TestChartsPNG(t *testing.T) {
 	out := os.Getenv("CHART_OUT") // set to a directory to keep the images for a look
-	for _, c := range sampleCharts() {
+	for _, c := range append(sampleCharts(), decisionCharts()...) {
 		t.Run(c.name, func(t *testing.T) {
 			var buf bytes.Buffer
 			if err := c.write(&buf, PNG); err != nil {
@@ -115,9 +115,10 @@ func TestChartsPNG(t *testing.T) {
 
 // TestChartsSVG checks each chart's SVG against the XML 1.0 grammar (as
 // encoding/xml reads it) and the SVG 1.1 rule that the document element
-// is <svg>.
+// is <svg>, so that it can be inlined in HTML; and that each carries the
+// texts decisionText lists for it.
 func TestChartsSVG(t *testing.T) {
-	for _, c := range sampleCharts() {
+	for _, c := range append(sampleCharts(), decisionCharts()...) {
 		t.Run(c.name, func(t *testing.T) {
 			var buf bytes.Buffer
 			if err := c.write(&buf, SVG); err != nil {
@@ -143,6 +144,11 @@ func TestChartsSVG(t *testing.T) {
 			}
 			if root != "svg" {
 				t.Errorf("root element %q, want svg", root)
+			}
+			for _, w := range decisionText[c.name] {
+				if !strings.Contains(s, w) {
+					t.Errorf("SVG lacks the text %q", w)
+				}
 			}
 		})
 	}

@@ -54,6 +54,19 @@ func TestEdgeCases(t *testing.T) {
 		{"sweep no zero", SweepPlot{Lambda: []float64{1e-3, 1e-1}, Valid: []float64{0.4, 0.3}}.Write},
 		{"sweep one positive", SweepPlot{Lambda: []float64{0, 0.5}, Train: []float64{0.4, 0.3}}.Write},
 		{"curve one point", CurvePlot{Rows: []float64{50}, Holdout: []float64{0.7}}.Write},
+		{"roc one point", ROCPlot{Curves: []Series{{"a", []float64{0}, []float64{0}}}}.Write},
+		{"roc NaN rates", ROCPlot{Curves: []Series{{"a", []float64{0, math.NaN(), 1}, []float64{0, 0.5, 1}}}}.Write},
+		{"pr one point", PRPlot{Curves: []Series{{"a", []float64{1}, []float64{0.03}}}, Marks: []Mark{{X: 1, Y: 0.03}}}.Write},
+		{"reliability 1 bin", ReliabilityPlot{Count: []int{5}, Accuracy: []float64{1}, Confidence: []float64{1}}.Write},
+		{"reliability 40 bin", func(w io.Writer, f Format) error {
+			r := ReliabilityPlot{Count: make([]int, 40), Accuracy: make([]float64, 40), Confidence: make([]float64, 40)}
+			for b := range 40 {
+				r.Count[b] = 1000 + b
+				r.Accuracy[b] = float64(b) / 40
+				r.Confidence[b] = (float64(b) + 0.5) / 40
+			}
+			return r.Write(w, f)
+		}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

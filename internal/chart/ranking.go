@@ -200,16 +200,22 @@ func rateCurves(w io.Writer, f Format, what, title, xlabel, ylabel string, curve
 	}
 	p.X.Min, p.X.Max = 0, 1
 	p.Y.Min, p.Y.Max = 0, 1.02 // room for a curve along the top edge
-	unitTicks := plot.ConstantTicks{
-		{Value: 0, Label: "0"}, {Value: 0.2, Label: "0.2"}, {Value: 0.4, Label: "0.4"},
-		{Value: 0.6, Label: "0.6"}, {Value: 0.8, Label: "0.8"}, {Value: 1, Label: "1"},
-	}
 	p.X.Tick.Marker, p.Y.Tick.Marker = unitTicks, unitTicks
-	fg := fig{title: title, entries: entries}
-	return render(w, f, Width, Height, func(dc draw.Canvas) error {
+	return render(w, f, Width, Height, drawSquare(fig{title: title, entries: entries}, p))
+}
+
+// unitTicks label an axis over [0, 1] in steps of 0.2.
+var unitTicks = plot.ConstantTicks{
+	{Value: 0, Label: "0"}, {Value: 0.2, Label: "0.2"}, {Value: 0.4, Label: "0.4"},
+	{Value: 0.6, Label: "0.6"}, {Value: 0.8, Label: "0.8"}, {Value: 1, Label: "1"},
+}
+
+// drawSquare returns the drawing of p in the body of fg, narrowed to its
+// height and centred: a square data area reads the unit interval on both
+// axes alike.
+func drawSquare(fg fig, p *plot.Plot) func(dc draw.Canvas) error {
+	return func(dc draw.Canvas) error {
 		body := fg.body(dc)
-		// A square data area reads rates on both axes alike: narrow the
-		// body to its height, centred.
 		side := body.Max.Y - body.Min.Y + 1.2*vg.Centimeter
 		if wdt := body.Max.X - body.Min.X; wdt > side {
 			body.Min.X += (wdt - side) / 2
@@ -217,7 +223,7 @@ func rateCurves(w io.Writer, f Format, what, title, xlabel, ylabel string, curve
 		}
 		p.Draw(body)
 		return nil
-	})
+	}
 }
 
 // unitOrNaN reports whether v is NaN or in [0, 1].

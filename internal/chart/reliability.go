@@ -105,27 +105,14 @@ func (r ReliabilityPlot) Write(w io.Writer, f Format) error {
 
 	p.X.Min, p.X.Max = 0, 1
 	p.Y.Min, p.Y.Max = 0, 1.08 // room for the count above a full bar
-	ticks := plot.ConstantTicks{
-		{Value: 0, Label: "0"}, {Value: 0.2, Label: "0.2"}, {Value: 0.4, Label: "0.4"},
-		{Value: 0.6, Label: "0.6"}, {Value: 0.8, Label: "0.8"}, {Value: 1, Label: "1"},
-	}
-	p.X.Tick.Marker, p.Y.Tick.Marker = ticks, ticks
+	p.X.Tick.Marker, p.Y.Tick.Marker = unitTicks, unitTicks
 	fillSt := style{glyph: draw.GlyphStyle{Color: fill, Radius: vg.Points(4), Shape: draw.BoxGlyph{}}}
 	fg := fig{title: r.Title, entries: []entry{
 		{name: "observed frequency per bin (count above)", st: fillSt},
 		{name: "mean predicted probability", st: mark},
 		{name: "perfect calibration", st: diag, line: true},
 	}}
-	return render(w, f, Width, Height, func(dc draw.Canvas) error {
-		body := fg.body(dc)
-		side := body.Max.Y - body.Min.Y + 1.2*vg.Centimeter
-		if wdt := body.Max.X - body.Min.X; wdt > side {
-			body.Min.X += (wdt - side) / 2
-			body.Max.X = body.Min.X + side
-		}
-		p.Draw(body)
-		return nil
-	})
+	return render(w, f, Width, Height, drawSquare(fg, p))
 }
 
 // bars fills bin b, [b/n, (b+1)/n], from 0 up to height[b] and outlines

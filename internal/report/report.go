@@ -173,7 +173,6 @@ type impView struct {
 	Repeats       int
 	Seed          uint64
 	BaseCE        fig
-	BaseAccuracy  fig
 	Rows          []impRow
 	Width, Height int
 	AxisX         float64 // x of zero
@@ -383,12 +382,12 @@ func training(m *nn.Model) []kv {
 		{"time", fmt.Sprintf("%.2f s", sm.Seconds)},
 		{"final cost (with penalty)", num(sm.Cost)},
 		{"training rows", strconv.Itoa(sm.TrainRows)},
-		{"training accuracy", Format("accuracy", nanPtr(sm.TrainAccuracy))},
+		{"training accuracy", Format("accuracy", ptr(sm.TrainAccuracy))},
 	}
 	if sm.HoldoutRows > 0 {
 		out = append(out, kv{"holdout rows", strconv.Itoa(sm.HoldoutRows)},
 			kv{"holdout cross-entropy", num(sm.HoldoutCost)},
-			kv{"holdout accuracy", Format("accuracy", nanPtr(sm.HoldoutAccuracy))})
+			kv{"holdout accuracy", Format("accuracy", ptr(sm.HoldoutAccuracy))})
 	} else {
 		out = append(out, kv{"holdout rows", "none"})
 	}
@@ -404,8 +403,6 @@ func training(m *nn.Model) []kv {
 	out = append(out, kv{"initialisation seed", strconv.FormatUint(sm.Seed, 10)}, kv{"trained by", library(sm.Library)})
 	return out
 }
-
-func nanPtr(v float64) *float64 { return &v }
 
 // library names the seine version that trained a model.
 func library(v string) string {
@@ -433,8 +430,7 @@ func importanceView(im *diag.Importance) *impView {
 		top    = 8
 	)
 	v := &impView{Repeats: im.Repeats, Seed: im.Seed, LabelW: labelW,
-		BaseCE:       newFig("", "cross_entropy", "", "", ptr(im.CrossEntropy)),
-		BaseAccuracy: newFig("", "accuracy", "", "", ptr(im.Accuracy))}
+		BaseCE: newFig("", "cross_entropy", "", "", ptr(im.CrossEntropy))}
 	lo, hi := 0.0, 0.0
 	for _, in := range im.Inputs {
 		lo, hi = math.Min(lo, in.CrossEntropyRise.Min), math.Max(hi, in.CrossEntropyRise.Max)

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"context"
+	"html"
 	"math"
 	"math/rand/v2"
 	"regexp"
@@ -127,7 +128,7 @@ func TestFigures(t *testing.T) {
 		assert.Equal(t, Format(m[1], v), m[3], id)
 	}
 	for _, c := range r.PerClass {
-		i := strings.Index(page, `<tr data-class="`+htmlEscape(c.Name)+`"><td>`)
+		i := strings.Index(page, `<tr data-class="`+html.EscapeString(c.Name)+`"><td>`)
 		require.GreaterOrEqual(t, i, 0, "row of %q", c.Name)
 		row := page[i : i+strings.Index(page[i:], "</tr>")]
 		found := map[string]string{}
@@ -146,7 +147,7 @@ func TestFigures(t *testing.T) {
 	}
 	for i, row := range r.Confusion {
 		for j, n := range row {
-			assert.Contains(t, page, `data-true="`+htmlEscape(r.Classes[i])+`" data-predicted="`+htmlEscape(r.Classes[j])+`" data-value="`+strconv.Itoa(n)+`"`)
+			assert.Contains(t, page, `data-true="`+html.EscapeString(r.Classes[i])+`" data-predicted="`+html.EscapeString(r.Classes[j])+`" data-value="`+strconv.Itoa(n)+`"`)
 		}
 	}
 	for _, in := range p.Importance.Inputs {
@@ -159,11 +160,6 @@ func TestFigures(t *testing.T) {
 	assert.Contains(t, page, "softmax: each row is given its most probable class")
 	assert.Contains(t, page, `id="roc-figure"><svg`)
 	assert.Contains(t, page, "No precision–recall curve.")
-}
-
-func htmlEscape(s string) string {
-	r := strings.NewReplacer("&", "&amp;", "<", "&lt;", ">", "&gt;", `"`, "&#34;", "'", "&#39;")
-	return r.Replace(s)
 }
 
 // TestFormat: the page's number formats (accuracy as a percentage with
