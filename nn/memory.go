@@ -10,7 +10,7 @@ import "runtime"
 // m) the rows of one chunk and b the mini-batch rows (opt.Batch when it is
 // in (0, m), else no batch buffers), it counts 8-byte words:
 //
-//	data        m·n_0 + m·K            x (scaled) and y, which the objective reads in place
+//	data        m·n_0 + m·K            x (encoded) and y, which the objective reads in place
 //	            + m                    the targets of a binary sigmoid output (one unit)
 //	batches     m + b·n_0 + b·n_L      row permutation and the gathered batch rows
 //	workspaces  W·(2P + 3·c·Σ_{l≥1} n_l) per worker: two chunk gradients waiting to be summed, and Z, A, Δ of every layer
@@ -22,7 +22,7 @@ import "runtime"
 // plus at most 160 bytes per chunk for the chunk descriptors (two
 // blas64.General of 48 bytes each, and the lists of the batches). It leaves out what the
 // caller holds besides: the data set as read from the file (another m·n_0 +
-// m·K words, often kept alongside the scaled copy), holdout rows and their
+// m·K words, often kept alongside the encoded copy), holdout rows and their
 // workspace, and the optimizer's state. For the optimizer add P words for
 // each of the optim.StateVectors(method) vectors that a run of
 // optim.Minimize keeps, and P for the starting point the caller holds:

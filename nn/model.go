@@ -246,9 +246,8 @@ func (m *Model) NumClasses() int { return len(m.Classes) }
 func (m *Model) Multilabel() bool { return m.Spec.Output.Multilabel }
 
 // classProbs runs one coded row through the net and returns pooled scratch
-// whose probs hold the class probabilities; the caller puts it back. For
-// the binary sigmoid net the one unit is the probability p of Classes[1],
-// and probs = [1−p, p].
+// whose probs hold the class probabilities (see toClassProbs); the caller
+// puts it back.
 func (m *Model) classProbs(x []float64) *rowScratch {
 	if err := m.built(); err != nil {
 		panic(err.Error())
@@ -257,14 +256,27 @@ func (m *Model) classProbs(x []float64) *rowScratch {
 		panic(fmt.Sprintf("nn: row has %d values, the model takes %d inputs", len(x), m.enc.NumInputs()))
 	}
 	sc := m.pool.Get().(*rowScratch)
+	m.rowProbs(sc, x)
+	return sc
+}
+
+// rowProbs expands the coded row x into sc, runs it through the net and
+// leaves its class probabilities in sc.probs.
+func (m *Model) rowProbs(sc *rowScratch, x []float64) {
 	m.enc.Expand(sc.in, x)
 	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
-	if len(sc.out) == 1 && len(sc.probs) == 2 {
-		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
-	} else {
-		copy(sc.probs, sc.out)
+	toClassProbs(sc.probs, sc.out)
+}
+
+// toClassProbs writes into p the class probabilities of the net outputs o:
+// o itself, or for the binary sigmoid net (one unit, the probability q of
+// Classes[1], and two classes) [1−q, q].
+func toClassProbs(p, o []float64) {
+	if len(o) == 1 && len(p) == 2 {
+		p[0], p[1] = 1-o[0], o[0]
+		return
 	}
-	return sc
+	copy(p, o)
 }
 
 // Probabilities writes the probability of each class for the coded row
@@ -326,7 +338,7 @@ func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
 	return dst
 }
 
-// ProbabilitiesBatch writes the class probabilities of each raw row of x
+// ProbabilitiesBatch writes the class probabilities of each coded row of x
 // into the rows of dst, which must be r × NumClasses for r = rows of x, or
 // empty (then it is sized). Rows go through the net in blocks of pooled
 // workspace, so a call allocates almost nothing after warm-up.
@@ -365,7 +377,7 @@ type batchScratch struct {
 	probs []float64  // class probabilities of one row
 }
 
-// eachRow runs the raw rows of x through the net in blocks and calls emit
+// eachRow runs the coded rows of x through the net in blocks and calls emit
 // with each row's index and class probabilities (valid during the call).
 func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
 	r, c := x.Dims()
@@ -395,12 +407,7 @@ func (m *Model) eachRow(x mat.Matrix, emit func(i int, p []float64)) {
 		}
 		out := m.net.Forward(sc.ws, m.fwd, block)
 		for i := 0; i < n; i++ {
-			o := out.RawRowView(i)
-			if len(o) == 1 && len(sc.probs) == 2 {
-				sc.probs[0], sc.probs[1] = 1-o[0], o[0]
-			} else {
-				copy(sc.probs, o)
-			}
+			toClassProbs(sc.probs, out.RawRowView(i))
 			emit(start+i, sc.probs)
 		}
 	}

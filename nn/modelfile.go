@@ -55,12 +55,12 @@ import (
 // model predicts, in a fixed binary form: the spec text, the class names,
 // the label name, the encoder (missing tokens, then per input its name,
 // type, levels, rules, fill, mean and scale), the decision (temperature,
-// thresholds, rule, target; a nil marker when none) and the raw params bytes, each
-// preceded by its length as a little-endian uint64 (a nil list as 2⁶⁴−1)
-// and numbers as their IEEE 754 bits. The summary is informational and left
-// out. So a changed digit anywhere that matters (a scaler mean, a level, a
-// layer width) fails the check instead of silently shifting every
-// prediction.
+// thresholds, rule, target; a nil marker when none) and the raw params
+// bytes, each preceded by its length as a little-endian uint64 (a nil list
+// as 2⁶⁴−1) and numbers as their IEEE 754 bits. The summary is
+// informational and left out. So a changed digit anywhere that matters (an
+// input's mean, a level, a layer width, a threshold) fails the check
+// instead of silently shifting every prediction.
 //
 // Version 1 files, written before inputs had types, hold "features" (names
 // or null) and "scaler" ({"mean": […], "scale": […]} or null) instead of

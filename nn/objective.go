@@ -68,7 +68,7 @@ type Objective struct {
 var _ optim.Batched = (*Objective)(nil)
 
 // NewObjective returns the objective of net n on the rows of x (m ×
-// Inputs, already scaled) with targets y (m × number of classes, one-hot or
+// Inputs, already encoded: expanded and scaled) with targets y (m × number of classes, one-hot or
 // multi-hot, values in [0, 1]). For a binary sigmoid output (one unit) the
 // target of the unit is column 1 of y. Errors wrap ErrShape, ErrNoRows,
 // ErrOption, or (inside a *ValueError) ErrNotFinite and ErrTarget.

@@ -39,13 +39,7 @@ func (b *Binding) probs(row []encode.Value) (*rowScratch, error) {
 		m.pool.Put(sc)
 		return nil, err
 	}
-	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
-	if len(sc.out) == 1 && len(sc.probs) == 2 {
-		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
-	} else {
-		copy(sc.probs, sc.out)
-	}
+	m.rowProbs(sc, sc.coded)
 	return sc, nil
 }
 
@@ -80,18 +74,29 @@ func (b *Binding) Predict(row []encode.Value) (int, error) {
 	return k, nil
 }
 
+// recordProbs codes the record rec and runs it through the net; the caller
+// puts the scratch back when err is nil.
+func (m *Model) recordProbs(rec map[string]any) (*rowScratch, error) {
+	if err := m.built(); err != nil {
+		return nil, err
+	}
+	sc := m.pool.Get().(*rowScratch)
+	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
+		m.pool.Put(sc)
+		return nil, err
+	}
+	m.rowProbs(sc, sc.coded)
+	return sc, nil
+}
+
 // ProbabilitiesRecord writes the class probabilities of the record rec (a
 // value per input name; see encode.Encoder.CodeRecord for the value types)
 // into dst, allocated when nil or too short, and returns it. A missing
 // field, a missing value or an unknown level that the input's rule refuses,
 // or a value of the wrong type is an *encode.FieldError.
 func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float64, error) {
-	if err := m.built(); err != nil {
-		return nil, err
-	}
-	sc := m.pool.Get().(*rowScratch)
-	defer m.pool.Put(sc)
-	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
+	sc, err := m.recordProbs(rec)
+	if err != nil {
 		return nil, err
 	}
 	k := len(m.Classes)
@@ -99,35 +104,21 @@ func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float6
 		dst = make([]float64, k)
 	}
 	dst = dst[:k]
-	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
-	if len(sc.out) == 1 && k == 2 {
-		dst[0], dst[1] = 1-sc.out[0], sc.out[0]
-	} else {
-		copy(dst, sc.out)
-	}
+	copy(dst, sc.probs)
+	m.pool.Put(sc)
 	return dst, nil
 }
 
-// PredictRecord returns the index in Classes of the most probable class of
-// the record rec (see ProbabilitiesRecord).
+// PredictRecord returns the index in Classes of the class decided for the
+// record rec, as Predict decides (see ProbabilitiesRecord for the record).
 func (m *Model) PredictRecord(rec map[string]any) (int, error) {
-	if err := m.built(); err != nil {
+	sc, err := m.recordProbs(rec)
+	if err != nil {
 		return -1, err
 	}
-	sc := m.pool.Get().(*rowScratch)
-	defer m.pool.Put(sc)
-	if _, err := m.enc.CodeRecord(sc.coded, rec); err != nil {
-		return -1, err
-	}
-	m.enc.Expand(sc.in, sc.coded)
-	m.net.ForwardRow(sc.out, sc.ws, m.fwd, sc.in)
-	if len(sc.out) == 1 && len(m.Classes) == 2 {
-		sc.probs[0], sc.probs[1] = 1-sc.out[0], sc.out[0]
-	} else {
-		copy(sc.probs, sc.out)
-	}
-	return m.decide(sc.probs), nil
+	k := m.decide(sc.probs)
+	m.pool.Put(sc)
+	return k, nil
 }
 
 // ProbabilitiesSet returns the class probabilities of every row of set, a
@@ -151,12 +142,7 @@ func (m *Model) ProbabilitiesSet(set *data.Set) (*mat.Dense, error) {
 		block := u.Slice(start, start+n, 0, m.net.Inputs()).(*mat.Dense)
 		o := m.net.Forward(sc.ws, m.fwd, block)
 		for i := 0; i < n; i++ {
-			oi, pi := o.RawRowView(i), out.RawRowView(start+i)
-			if len(oi) == 1 && len(pi) == 2 {
-				pi[0], pi[1] = 1-oi[0], oi[0]
-			} else {
-				copy(pi, oi)
-			}
+			toClassProbs(out.RawRowView(start+i), o.RawRowView(i))
 		}
 	}
 	return out, nil

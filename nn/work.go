@@ -2,6 +2,7 @@ package nn
 
 import (
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -44,23 +45,20 @@ type classWeights struct {
 	w, pos, neg []float64
 }
 
-// newClassWeights lays the per-class weights of classes out per output
-// unit of n: softmax units take w_k; a binary sigmoid unit (classes c0,
-// c1) takes w_1 on its positive and w_0 on its negative side; multi-label
-// sigmoid units take w_k on the positive side and 1 on the negative.
-func newClassWeights(n *Net, classes []float64) *classWeights {
+// newClassWeights lays the per-class weights w out per output unit of n:
+// softmax units take w_k; a binary sigmoid unit (classes c0, c1) takes w_1
+// on its positive and w_0 on its negative side; multi-label sigmoid units
+// take w_k on the positive side and 1 on the negative.
+func newClassWeights(n *Net, w []float64) *classWeights {
 	cw := &classWeights{}
 	switch {
 	case n.spec.Output.Activation == spec.Softmax:
-		cw.w = append([]float64(nil), classes...)
+		cw.w = slices.Clone(w)
 	case n.Outputs() == 1:
-		cw.pos, cw.neg = []float64{classes[1]}, []float64{classes[0]}
+		cw.pos, cw.neg = []float64{w[1]}, []float64{w[0]}
 	default:
-		cw.pos = append([]float64(nil), classes...)
-		cw.neg = make([]float64, len(classes))
-		for k := range cw.neg {
-			cw.neg[k] = 1
-		}
+		cw.pos = slices.Clone(w)
+		cw.neg = ones(len(w))
 	}
 	return cw
 }

@@ -42,8 +42,9 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 	}
 	var d nn.Decision
 	probs := func(t float64) (*mat.Dense, error) {
-		zt := mat.DenseCopyOf(z)
+		zt := z
 		if t != 1 {
+			zt = new(mat.Dense)
 			if err := score.ApplyTemperature(zt, z, t); err != nil {
 				return nil, err
 			}
@@ -52,15 +53,7 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 		if err := score.Probabilities(&p, zt, out); err != nil {
 			return nil, err
 		}
-		if net.Outputs() == 1 && len(model.Classes) == 2 {
-			two := mat.NewDense(r, 2, nil)
-			for i := range r {
-				two.Set(i, 0, 1-p.At(i, 0))
-				two.Set(i, 1, p.At(i, 0))
-			}
-			return two, nil
-		}
-		return &p, nil
+		return classColumns(&p, len(model.Classes)), nil
 	}
 	ece := func(t float64) (float64, *mat.Dense, error) {
 		p, err := probs(t)
@@ -88,10 +81,7 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 			return fmt.Errorf("train: holdout calibration: %w", err)
 		}
 	}
-	if th := cfg.Thresholds; th != nil {
-		if s.Output.Activation != spec.Sigmoid {
-			return fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrConfig)
-		}
+	if th := cfg.Thresholds; th != nil { // sigmoid outputs only: Train checked
 		d.Rule, d.Target = th.Rule.String(), th.Target
 		var ops []score.Operating
 		var names []string
@@ -119,6 +109,23 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 		}
 	}
 	return model.SetDecision(d)
+}
+
+// classColumns returns the class probabilities of the output probabilities
+// p of a net: p itself, or for a binary sigmoid net (one unit, the
+// probability of class 1, with two classes) the two columns 1−p and p.
+func classColumns(p *mat.Dense, classes int) *mat.Dense {
+	r, c := p.Dims()
+	if c != 1 || classes != 2 {
+		return p
+	}
+	two := mat.NewDense(r, 2, nil)
+	for i := range r {
+		v := p.At(i, 0)
+		two.Set(i, 0, 1-v)
+		two.Set(i, 1, v)
+	}
+	return two
 }
 
 // noDecision marks the calibration figures of a model as not measured.

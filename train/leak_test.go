@@ -6,7 +6,6 @@ import (
 
 	"go.uber.org/goleak"
 
-	"github.com/seine-ml/seine/internal/fit"
 	"github.com/seine-ml/seine/optim"
 )
 
@@ -30,12 +29,4 @@ func TestTrainLeavesNoGoroutine(t *testing.T) {
 		t.Fatal(err)
 	}
 	goleak.VerifyNone(t, before)
-}
-
-// The driver's plumbing keeps its own copy of the default batch (it cannot
-// import train); they must agree.
-func TestDefaultBatchAgrees(t *testing.T) {
-	if DefaultBatch != fit.DefaultBatch {
-		t.Fatalf("train.DefaultBatch %d, internal/fit's %d", DefaultBatch, fit.DefaultBatch)
-	}
 }

@@ -1,10 +1,12 @@
 // Package train turns a spec and a data set into a model: it fits the
-// encoder (levels, fill values, scaling) on the training rows only, builds the cost objective of the net
-// (full batch, or mini-batches for momentum and Adam), runs an optim method
-// with the caller's context, limits and observer, measures the holdout rows
-// after every iteration when a holdout is given, and can keep the params
-// with the lowest holdout cost (early stopping with patience; Prechelt 1998
-// discusses the criterion).
+// encoder (levels, fill values, scaling) on the training rows only, builds
+// the cost objective of the net (full batch, or mini-batches for momentum
+// and Adam), runs an optim method with the caller's context, limits and
+// observer, measures the holdout rows after every iteration when a holdout
+// is given, and can keep the params with the lowest holdout cost (early
+// stopping with patience; Prechelt 1998 discusses the criterion). With a
+// holdout it can also calibrate the model and choose its operating
+// thresholds (Config.Calibrate, Config.Thresholds).
 package train
 
 import (
@@ -24,8 +26,9 @@ import (
 // Config sets a training run. Its zero value trains with the spec's `train:`
 // defaults, standardised features and no holdout.
 type Config struct {
-	// Method is the optimizer; nil means the one the spec names, or
-	// L-BFGS when it names none (see MethodFor).
+	// Method is the optimizer; nil means the one the spec names (with the
+	// spec's rate, and mini-batch shuffles seeded by Seed), or L-BFGS when
+	// it names none.
 	Method optim.Method
 	// Limits stop the run. A zero Iterations takes the spec's iterations
 	// (then optim's default); a zero GradTol the spec's tolerance (then
@@ -74,7 +77,7 @@ type Config struct {
 // Checkpoint asks Train for models of the params during a run.
 type Checkpoint struct {
 	Every int                     // iterations between models; 0 means none
-	Save  func(m *nn.Model) error // called with a model whose summary holds the step's figures, Status "Checkpoint"
+	Save  func(m *nn.Model) error // called with a model whose summary holds the step's figures, Status optim.Running
 }
 
 // Progress is the record of one iteration, with the holdout figures (NaN
@@ -103,7 +106,7 @@ var ErrConfig = fit.ErrConfig
 // practice and train well on the demos, where full-batch Adam at its
 // default rate stalled below the majority-class share; `seine train` and
 // `seine compare` both use it.
-const DefaultBatch = 32
+const DefaultBatch = fit.DefaultBatch
 
 // ErrNotFiniteParams is wrapped by the error of a run whose params ended
 // NaN or ±Inf: no model is built from them.
@@ -191,15 +194,7 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	checkpointFailed := false
 	lim.Observer = func(st optim.Step, xk []float64) bool {
 		if ck := cfg.Checkpoint; ck.Every > 0 && ck.Save != nil && st.Iter%ck.Every == 0 && !checkpointFailed {
-			m, err := nn.NewModel(prep.Spec, append([]float64(nil), xk...), prep.Encoder, set.Classes)
-			if err == nil {
-				m.Label = set.Label
-				m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
-					Status: optim.Running, Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
-					TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()}
-				err = ck.Save(m)
-			}
-			checkpointFailed = err != nil
+			checkpointFailed = saveCheckpoint(ck, prep, set, seed, st, xk) != nil
 		}
 		p := Progress{Step: st, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
 		stop := false
@@ -275,12 +270,26 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 			return nil, err
 		}
 	}
-	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, hx, run)...)
+	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, run)...)
 	res.Model = model
 	if runErr != nil {
 		return res, fmt.Errorf("train: %w", runErr)
 	}
 	return res, nil
+}
+
+// saveCheckpoint hands ck.Save a model of the params xk at the step st,
+// built with the run's encoder, whose summary holds the step's figures.
+func saveCheckpoint(ck Checkpoint, prep *fit.Prepared, set *data.Set, seed uint64, st optim.Step, xk []float64) error {
+	m, err := nn.NewModel(prep.Spec, append([]float64(nil), xk...), prep.Encoder, set.Classes)
+	if err != nil {
+		return err
+	}
+	m.Label = set.Label
+	m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
+		Status: optim.Running, Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
+		TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()}
+	return ck.Save(m)
 }
 
 // methodName gives the spec name of the known methods.

@@ -3,8 +3,6 @@ package train
 import (
 	"fmt"
 
-	"gonum.org/v1/gonum/mat"
-
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
@@ -25,7 +23,7 @@ const gradLarge = 1e-2
 // limit reached with the gradient still large, and the holdout figures'
 // own warnings (score.Warnings, which also name a class the holdout
 // lacks).
-func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Result) []string {
+func fitWarnings(m *nn.Model, set, hold *data.Set, run optim.Result) []string {
 	var out []string
 	for k, n := range set.Counts() {
 		switch {
@@ -46,16 +44,11 @@ func fitWarnings(m *nn.Model, set, hold *data.Set, hx *mat.Dense, run optim.Resu
 	if hold == nil {
 		return out
 	}
-	net := m.Net()
-	r, _ := hx.Dims()
-	p := net.Forward(net.NewWorkspace(r), m.Params, hx)
-	probs := mat.DenseCopyOf(p)
-	if _, c := p.Dims(); c == 1 && len(m.Classes) == 2 {
-		probs = mat.NewDense(r, 2, nil)
-		for i := range r {
-			probs.Set(i, 0, 1-p.At(i, 0))
-			probs.Set(i, 1, p.At(i, 0))
-		}
+	// The model's own probabilities (with its temperature), on which its
+	// thresholds were chosen.
+	probs, err := m.ProbabilitiesSet(hold)
+	if err != nil {
+		return out
 	}
 	var th []float64
 	if m.Spec.Output.Activation == spec.Sigmoid {

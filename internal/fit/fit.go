@@ -105,11 +105,8 @@ func Defaults(s *spec.Network, lim optim.Limits, batch int) (optim.Limits, int) 
 }
 
 // DefaultBatch is the mini-batch size, in rows, of momentum and Adam when
-// neither Config.Batch nor the spec's train.batch sets one; the other
-// methods use every row at every step. Mini-batches of 32 rows are common
-// practice and train well on the demos, where full-batch Adam at its
-// default rate stalled below the majority-class share; `seine train` and
-// `seine compare` both use it.
+// neither the caller nor the spec's train.batch sets one (train.DefaultBatch
+// is the same value, and says why 32).
 const DefaultBatch = 32
 
 // CheckSet reports how set does not fit the net that s describes: no rows,
@@ -134,7 +131,7 @@ func CheckSet(s *spec.Network, set *data.Set, what string) error {
 	return nil
 }
 
-// Scorer measures params on a fixed set of scaled rows: the mean
+// Scorer measures params on a fixed set of encoded rows: the mean
 // cross-entropy without the penalty (nats) and the accuracy. Used for
 // holdout rows during training and by the diagnostics.
 type Scorer struct {
@@ -145,7 +142,7 @@ type Scorer struct {
 	ws  *nn.Workspace
 }
 
-// NewScorer returns a Scorer of the rows x (scaled as the net was trained)
+// NewScorer returns a Scorer of the rows x (encoded as the net was trained)
 // with the targets of set. workers bounds the goroutines of one evaluation,
 // 0 meaning GOMAXPROCS.
 func NewScorer(net *nn.Net, x *mat.Dense, set *data.Set, workers int) (*Scorer, error) {
