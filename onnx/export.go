@@ -179,7 +179,7 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 		OpsetImport:     []*pb.OperatorSetIdProto{{Domain: proto.String(""), Version: proto.Int64(int64(opset))}},
 		ProducerName:    proto.String("seine"),
 		ProducerVersion: proto.String(nn.Version),
-		DocString:       proto.String("A seine classifier: raw inputs to class probabilities and the most probable class."),
+		DocString:       proto.String("A seine classifier: raw inputs to class probabilities and the classes decided by the model's decision (its operating thresholds, else the most probable class)."),
 		Graph:           b.g,
 		MetadataProps:   meta,
 	}, nil
@@ -422,11 +422,17 @@ func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 // about ulp(1)/2, as from 1/2 + tanh(z/2)/2.
 func sigmoid(b *graph, z, out string) string {
 	one := b.scalar("one", 1)
-	e := b.node("Exp", out+"_e", []string{b.node("Neg", out+"_negabs", []string{b.node("Abs", out+"_abs", []string{z})})})
+	e := expNegAbs(b, z, out)
 	d := b.node("Add", out+"_d", []string{one, e})
 	pos := b.node("Div", out+"_pos", []string{one, d})
 	neg := b.node("Div", out+"_neg", []string{e, d})
 	return b.node("Where", out, []string{b.node("GreaterOrEqual", out+"_nonneg", []string{z, b.scalar("zero", 0)}), pos, neg})
+}
+
+// expNegAbs adds e^(−|z|), the term of sigmoid and softplus that cannot
+// overflow, and returns its name.
+func expNegAbs(b *graph, z, out string) string {
+	return b.node("Exp", out+"_e", []string{b.node("Neg", out+"_negabs", []string{b.node("Abs", out+"_abs", []string{z})})})
 }
 
 // hidden adds the activation g of the pre-activations z and returns the
@@ -454,7 +460,7 @@ func hidden(b *graph, g spec.Activation, z, out string) (string, error) {
 		// (Goldberg 1991, "What every computer scientist should know about
 		// floating-point arithmetic", Theorem 4, after Kahan).
 		one := b.scalar("one", 1)
-		e := b.node("Exp", out+"_e", []string{b.node("Neg", out+"_negabs", []string{b.node("Abs", out+"_abs", []string{z})})})
+		e := expNegAbs(b, z, out)
 		u := b.node("Add", out+"_u", []string{one, e})
 		ratio := b.node("Div", out+"_ratio", []string{
 			b.node("Mul", out+"_loge", []string{b.node("Log", out+"_logu", []string{u}), e}),

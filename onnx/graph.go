@@ -62,13 +62,7 @@ func (b *graph) fresh(base string) string {
 // output, made from out.
 func (b *graph) node(op, out string, inputs []string, attrs ...*pb.AttributeProto) string {
 	name := b.fresh(out)
-	b.g.Node = append(b.g.Node, &pb.NodeProto{
-		OpType:    proto.String(op),
-		Name:      proto.String(name),
-		Input:     inputs,
-		Output:    []string{name},
-		Attribute: attrs,
-	})
+	b.nodeTo(op, name, inputs, attrs...)
 	return name
 }
 

@@ -29,8 +29,9 @@ import (
 
 // The checks of this file run the exported models in tools that are not
 // seine's: the ONNX runtime's WebAssembly build for Node (npm
-// onnxruntime-web, run by testdata/run.mjs) and the ONNX project's checker
-// (Debian's python3-onnx, run by testdata/check.py). Where they are absent
+// onnxruntime-web 1.30.0, as pinned in .ci/run, run by testdata/run.mjs)
+// and the ONNX project's checker (Debian's python3-onnx, ONNX 1.12.0, run
+// by testdata/check.py); see testdata/SOURCE.md. Where they are absent
 // the tests skip, saying what to install; with SEINE_REQUIRE_ONNX=1 (as
 // .ci/run sets) they fail instead.
 

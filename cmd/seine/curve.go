@@ -59,11 +59,10 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
+	if err := requireFlags("spec", *specPath, "data", *dataPath); err != nil {
+		return err
+	}
 	switch {
-	case *specPath == "":
-		return usagef("-spec is required")
-	case *dataPath == "":
-		return usagef("-data is required")
 	case *steps < 1:
 		return usagef("-steps %d: want ≥ 1", *steps)
 	case !(*holdout > 0 && *holdout < 1):

@@ -74,11 +74,8 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	if *modelPath == "" {
-		return usagef("-model is required")
-	}
-	if *dataPath == "" {
-		return usagef("-data is required")
+	if err := requireFlags("model", *modelPath, "data", *dataPath); err != nil {
+		return err
 	}
 	if err := checkThreshold(*threshold); err != nil {
 		return err
@@ -93,15 +90,14 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 	}
-	plots := map[string]string{"-roc": *rocFile, "-pr": *prFile, "-reliability": *relFile}
-	for flag, path := range plots {
-		if path == "" {
+	for _, pl := range []struct{ flag, path string }{{"-roc", *rocFile}, {"-pr", *prFile}, {"-reliability", *relFile}} {
+		if pl.path == "" {
 			continue
 		}
-		if _, err := chart.FormatOf(path); err != nil {
-			return usagef("%s %s: want a file name ending in .png or .svg", flag, path)
+		if _, err := chart.FormatOf(pl.path); err != nil {
+			return usagef("%s %s: want a file name ending in .png or .svg", pl.flag, pl.path)
 		}
-		if err := refuseOverwrite(flag, path, "model", *modelPath, "data", *dataPath); err != nil {
+		if err := refuseOverwrite(pl.flag, pl.path, "model", *modelPath, "data", *dataPath); err != nil {
 			return err
 		}
 	}
@@ -125,8 +121,8 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(e.stderr, "seine evaluate: warning: %s\n", w)
 	}
+	title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
 	if *plot != "" {
-		title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
 		err := writeAtomic(*plot, func(w io.Writer) error {
 			return chart.ConfusionPlot(w, format, title, rep.Classes, rep.Confusion)
 		})
@@ -134,7 +130,6 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 			return fmt.Errorf("-plot %s: %w", *plot, err)
 		}
 	}
-	title := fmt.Sprintf("%s on %s", displayName(m), baseName(*dataPath))
 	for _, pl := range []struct {
 		flag, path string
 		chart      chartWriter

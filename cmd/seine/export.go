@@ -20,7 +20,9 @@ after it, holding the cell text without surrounding spaces. Outputs:
 class predict decides (the model's temperature and operating threshold
 included), and for a multi-label model "labels" [N, classes] int64, 1 for
 each class present. The metadata holds the class names (classes, a JSON
-list), the spec name, the seine version and the model's sha256.
+list), the spec name, the seine version, the model's sha256, the input
+names (number_inputs and category_inputs, JSON lists) and, when the model
+has them, its temperature and thresholds.
 
 The graph cannot refuse a row: a level never seen in training gives zeros
 for that input even under unknown: refuse, where predict refuses the row.
@@ -37,12 +39,10 @@ func runExport(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	switch {
-	case *modelPath == "":
-		return usagef("-model is required")
-	case *out == "":
-		return usagef("-out is required")
-	case *opset < onnx.MinOpset || *opset > onnx.MaxOpset:
+	if err := requireFlags("model", *modelPath, "out", *out); err != nil {
+		return err
+	}
+	if *opset < onnx.MinOpset || *opset > onnx.MaxOpset {
 		return usagef("-opset %d: want %d to %d", *opset, onnx.MinOpset, onnx.MaxOpset)
 	}
 	if err := refuseOverwrite("-out", *out, "model", *modelPath); err != nil {

@@ -72,3 +72,14 @@ func checkThreshold(t float64) error {
 	}
 	return nil
 }
+
+// requireFlags returns the usage error "-NAME is required" for the first of
+// the flags, given as name, value pairs, whose value is empty.
+func requireFlags(nameValues ...string) error {
+	for i := 0; i+1 < len(nameValues); i += 2 {
+		if nameValues[i+1] == "" {
+			return usagef("-%s is required", nameValues[i])
+		}
+	}
+	return nil
+}

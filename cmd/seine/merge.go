@@ -119,16 +119,13 @@ func parseShard(v string, getenv func(string) string) (diag.Shard, error) {
 		}
 	}
 	var k int
-	if kText != "env" {
-		var err error
-		if k, err = strconv.Atoi(kText); err != nil {
-			return diag.Shard{}, usagef("-shard %s: K is %q, want a whole number in 0…N−1", v, kText)
-		}
-	} else {
-		var err error
+	var err error
+	if kText == "env" {
 		if k, n, err = shardFromEnv(v, n, getenv); err != nil {
 			return diag.Shard{}, err
 		}
+	} else if k, err = strconv.Atoi(kText); err != nil {
+		return diag.Shard{}, usagef("-shard %s: K is %q, want a whole number in 0…N−1", v, kText)
 	}
 	if k < 0 || k >= n {
 		return diag.Shard{}, usagef("-shard %s: K is %d, want 0 ≤ K < N = %d", v, k, n)
@@ -214,6 +211,9 @@ type part struct {
 	Curve    *curvePart        `json:"curve,omitempty"`
 	Compare  []comparePart     `json:"compare,omitempty"` // one per problem
 }
+
+// shard is the shard the part holds.
+func (p *part) shard() diag.Shard { return diag.Shard{K: p.K, N: p.N} }
 
 type partProblem struct {
 	Name       string `json:"name"`        // as in the tables: spec name on data file
@@ -395,14 +395,12 @@ func toComparePart(c *diag.Comparison) comparePart {
 	return cp
 }
 
-// parseStatus is the inverse of optim.Status.String.
+// parseStatus reads a run's final status as optim.Status.String writes it;
+// Running (which optim.ParseStatus also reads from "" and "Checkpoint") is
+// no finished run's status and is refused.
 func parseStatus(name string) (optim.Status, bool) {
-	for s := optim.Status(1); !strings.HasPrefix(s.String(), "Status("); s++ {
-		if s.String() == name {
-			return s, true
-		}
-	}
-	return 0, false
+	s, ok := optim.ParseStatus(name)
+	return s, ok && s != optim.Running
 }
 
 func (cp *comparePart) comparison(sh diag.Shard) (*diag.Comparison, error) {
@@ -629,7 +627,7 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 	case "sweep":
 		sws := make([]*diag.Sweep, len(parts))
 		for i, p := range parts {
-			if sws[i], err = p.Sweep.sweep(diag.Shard{K: p.K, N: p.N}); err != nil {
+			if sws[i], err = p.Sweep.sweep(p.shard()); err != nil {
 				return partError(paths[i], "%v", err)
 			}
 		}
@@ -641,7 +639,7 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 	case "curve":
 		cs := make([]*diag.Curve, len(parts))
 		for i, p := range parts {
-			cs[i] = p.Curve.curve(diag.Shard{K: p.K, N: p.N})
+			cs[i] = p.Curve.curve(p.shard())
 		}
 		c, err := diag.MergeCurves(cs)
 		if err != nil {
@@ -656,7 +654,7 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 		cs := make([]*diag.Comparison, len(parts))
 		for i, p := range parts {
 			cp := p.Compare[pi]
-			sh := problemShard(diag.Shard{K: p.K, N: p.N}, pi, len(cp.Methods)*len(cp.Seeds))
+			sh := problemShard(p.shard(), pi, len(cp.Methods)*len(cp.Seeds))
 			if cs[i], err = cp.comparison(sh); err != nil {
 				return partError(paths[i], "problem %d: %v", pi+1, err)
 			}

@@ -55,12 +55,10 @@ func runPredict(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	switch {
-	case *modelPath == "":
-		return usagef("-model is required")
-	case *dataPath == "":
-		return usagef("-data is required")
-	case *digits < 0 || *digits > 17:
+	if err := requireFlags("model", *modelPath, "data", *dataPath); err != nil {
+		return err
+	}
+	if *digits < 0 || *digits > 17 {
 		return usagef("-digits %d: want 1 to 17 significant digits, or 0 for exact", *digits)
 	}
 	if err := checkThreshold(*threshold); err != nil {

@@ -72,16 +72,16 @@ func TestPredict(t *testing.T) {
 				best = j
 			}
 		}
-		// Softmax outputs are normalised in float64: the sum of 5 terms is 1
-		// up to a few units of rounding, 5·2⁻⁵² ≈ 1e-15; 1e-12 is generous.
-		if math.Abs(sum-1) > 1e-12 {
+		// Softmax outputs are normalised in float64 and -digits 0 writes
+		// each probability exactly: the sum of 5 terms is 1 up to a few
+		// units of rounding, 5·2⁻⁵² ≈ 1.1e-15, so 1e-14 leaves a margin.
+		if math.Abs(sum-1) > 1e-14 {
 			t.Errorf("row %d: probabilities sum to %.17g", i+1, sum)
 		}
 		if rec[0] != want[best][2:] {
 			t.Errorf("row %d: class %q but the largest probability is %s", i+1, rec[0], want[best])
 		}
 		if i == 0 && rec[0] != m.Classes[0] {
-			// (-digits 0 writes each probability exactly, hence the 1e-12.)
 			// The first row of sessions.csv is a human session that every
 			// model trained here gets right (probability 0.99 at 100 iterations).
 			t.Errorf("row 1: %q, want human", rec[0])

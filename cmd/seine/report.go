@@ -63,14 +63,10 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	switch {
-	case *modelPath == "":
-		return usagef("-model is required")
-	case *dataPath == "":
-		return usagef("-data is required")
-	case *out == "":
-		return usagef("-out is required")
-	case *repeats < 1:
+	if err := requireFlags("model", *modelPath, "data", *dataPath, "out", *out); err != nil {
+		return err
+	}
+	if *repeats < 1 {
 		return usagef("-repeats %d: want at least 1", *repeats)
 	}
 	if err := checkThreshold(*threshold); err != nil {

@@ -66,11 +66,8 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	if *specPath == "" {
-		return usagef("-spec is required")
-	}
-	if *dataPath == "" {
-		return usagef("-data is required")
+	if err := requireFlags("spec", *specPath, "data", *dataPath); err != nil {
+		return err
 	}
 	if *l2List == "" && *unitsList == "" {
 		return usagef("give -l2 LIST, -units LIST or both")

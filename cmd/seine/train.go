@@ -190,13 +190,10 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 
 // check rejects flag values out of range, before any file is read.
 func (f *trainFlags) check() error {
+	if err := requireFlags("spec", f.spec, "data", f.data, "out", f.out); err != nil {
+		return err
+	}
 	switch {
-	case f.spec == "":
-		return usagef("-spec is required")
-	case f.data == "":
-		return usagef("-data is required")
-	case f.out == "":
-		return usagef("-out is required")
 	case f.iterations < 0:
 		return usagef("-iterations %d: want a count ≥ 0", f.iterations)
 	case f.batch < 0:
