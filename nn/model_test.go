@@ -418,6 +418,12 @@ func TestSaveRefusesUnloadable(t *testing.T) {
 	assert.Contains(t, err.Error(), "would not load")
 	b, _ := os.ReadFile(path)
 	assert.Equal(t, "the old model", string(b))
+
+	// WriteTo makes the same check, and writes nothing.
+	var buf bytes.Buffer
+	_, err = m.WriteTo(&buf)
+	require.ErrorIs(t, err, spec.ErrTooLarge)
+	assert.Zero(t, buf.Len())
 }
 
 // oneByte is a stream of one byte, forever.

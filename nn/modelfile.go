@@ -343,6 +343,10 @@ func fromNullable(p *float64) float64 {
 }
 
 // WriteTo writes m as a model file to w. It implements io.WriterTo.
+// Before writing anything it reads its own bytes back with ReadModel's
+// limits, so it never writes a file that ReadModel refuses: such a model
+// (one whose spec or learned levels exceed the limits, say) is an error
+// that wraps the loader's, and w is left untouched.
 func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	if m.net == nil {
 		if err := m.init(); err != nil {
@@ -387,6 +391,9 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 		return 0, fmt.Errorf("nn: encoding model: %w", err)
 	}
 	b = append(b, '\n')
+	if _, err := ReadModel(bytes.NewReader(b)); err != nil {
+		return 0, fmt.Errorf("nn: the model file would not load, so nothing was written: %w", err)
+	}
 	n, err := w.Write(b)
 	return int64(n), err
 }
@@ -783,32 +790,14 @@ func jsonErr(b []byte, err error) string {
 // lost model (internal/atomicfile): it writes a temporary file in the
 // target's folder, syncs it, and renames it over the target; a path that is
 // a symbolic link is written through to the file it names, and an existing
-// file keeps its permission bits. Before anything is written it reads the
-// bytes back with the loader's own limits, so Save never produces a file
-// that Load refuses (the error wraps the loader's). On any failure the old
-// file at path is untouched.
+// file keeps its permission bits. As WriteTo, it never produces a file that
+// Load refuses (the error wraps the loader's). On any failure the old file
+// at path is untouched.
 func (m *Model) Save(path string) error {
-	var buf bytes.Buffer
-	if _, err := m.WriteTo(&buf); err != nil {
-		return fmt.Errorf("nn: saving model %s: %w", path, err)
-	}
-	var unloadable error
-	err := atomicfile.Write(path, func(w io.Writer) error {
-		if _, err := w.Write(buf.Bytes()); err != nil {
-			return err
-		}
-		// Checked while the temporary file is open, before anything is
-		// renamed into place: a failure removes it.
-		if _, err := ReadModel(bytes.NewReader(buf.Bytes())); err != nil {
-			unloadable = err
-			return err
-		}
-		return nil
-	})
-	switch {
-	case unloadable != nil:
-		return fmt.Errorf("nn: saving model %s: the file would not load, so nothing was written: %w", path, unloadable)
-	case err != nil:
+	if err := atomicfile.Write(path, func(w io.Writer) error {
+		_, err := m.WriteTo(w)
+		return err
+	}); err != nil {
 		return fmt.Errorf("nn: saving model %s: %w", path, err)
 	}
 	return nil
