@@ -25,11 +25,13 @@ const defaultInspectRows = 10_000
 const inspectHelp = `Describes the net of a spec or model: each weight layer (units in and out,
 activation, weights, biases), the param count and its size, the floating-
 point operations per row to predict and for one cost-and-gradient
-evaluation (a multiply-add counts 2), and an estimate of the memory that
-training on -rows rows takes (default 10000, or a model's training rows):
-the scaled data, the evaluation workspaces of GOMAXPROCS workers, the
-gradient, and the optimizer's vectors. For a model it also shows how it
-was trained.
+evaluation (a multiply-add counts 2), and an estimate of the most memory
+that seine train takes on -rows rows (default 10000, or a model's training
+and holdout rows): the data as read, the encoded data, the evaluation
+workspaces of GOMAXPROCS workers, the gradient, the optimizer's vectors and
+the tool itself. seine train keeps Go's heap near this estimate (a soft
+limit, unless GOMEMLIMIT is set). For a model it also shows how it was
+trained.
 `
 
 func runInspect(ctx context.Context, e *env, args []string) error {
@@ -47,12 +49,13 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		return usagef("-rows %d: want a row count ≥ 1", *rows)
 	}
 	var (
-		s     *spec.Network
-		m     *nn.Model
-		path  string
-		err   error
-		kind  = "spec"
-		train = defaultInspectRows
+		s       *spec.Network
+		m       *nn.Model
+		path    string
+		err     error
+		kind    = "spec"
+		train   = defaultInspectRows
+		holdout int
 	)
 	if *specPath != "" {
 		path = *specPath
@@ -66,11 +69,11 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		}
 		s = m.Spec
 		if m.Summary.TrainRows > 0 {
-			train = m.Summary.TrainRows
+			train, holdout = m.Summary.TrainRows, m.Summary.HoldoutRows
 		}
 	}
 	if *rows > 0 {
-		train = *rows
+		train, holdout = *rows, 0
 	}
 	// Levels still to be learned from the training rows count as two per
 	// category, to show the rest of the net.
@@ -78,7 +81,7 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
-	writeInspect(e.stdout, kind, path, s, net, train)
+	writeInspect(e.stdout, kind, path, s, net, train, holdout)
 	if m == nil && s.Types != nil {
 		writeSpecInputs(e.stdout, s)
 	}
@@ -88,7 +91,7 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 	return nil
 }
 
-func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, rows int) {
+func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, rows, holdout int) {
 	name := safe(s.Name)
 	if name == "" {
 		name = "(unnamed)"
@@ -122,14 +125,20 @@ func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, 
 	fmt.Fprintf(w, "  params          %d float64 = %s\n", P, bytesText(8*int64(P)))
 	fmt.Fprintf(w, "  FLOPs per row   %s to predict, %s for cost and gradient\n", countText(predict), countText(evaluate))
 
-	opt := nn.ObjectiveOptions{Batch: s.Train.Batch}
-	objBytes := net.TrainingBytes(rows, opt)
+	mem := estimateTraining(net, s, rows, holdout)
 	method, stateWords := optimState(s.Train.Optimizer)
-	stateBytes := 8 * int64(stateWords) * int64(P)
-	fmt.Fprintf(w, "  training on %d rows, %d workers: about %s\n", rows, runtime.GOMAXPROCS(0), bytesText(objBytes+stateBytes))
-	fmt.Fprintf(w, "    data and evaluation  %s (scaled x and y, workspaces, gradient)\n", bytesText(objBytes))
-	fmt.Fprintf(w, "    optimizer (%s)%s %s (%d vectors of %d params)\n", method, strings.Repeat(" ", max(0, 8-len(method))), bytesText(stateBytes), stateWords, P)
-	fmt.Fprintf(w, "    plus the data as read (%s) and Go's collector headroom\n", bytesText(8*int64(rows)*int64(sizes[0]+len(s.Output.Classes))))
+	fmt.Fprintf(w, "  training on %d rows", rows)
+	if holdout > 0 {
+		fmt.Fprintf(w, " (+%d holdout)", holdout)
+	}
+	fmt.Fprintf(w, ", %d workers: peak about %s\n", runtime.GOMAXPROCS(0), bytesText(mem.Peak()))
+	fmt.Fprintf(w, "    data as read         %s (x as read, y and line numbers)\n", bytesText(mem.Read))
+	fmt.Fprintf(w, "    data and evaluation  %s (encoded x and y, workspaces, gradient)\n", bytesText(mem.Objective+mem.Holdout))
+	fmt.Fprintf(w, "    optimizer (%s)%s %s (%d vectors of %d params)\n", method, strings.Repeat(" ", max(0, 8-len(method))), bytesText(mem.State), stateWords, P)
+	if mem.Split > mem.Objective+mem.Holdout+mem.State {
+		fmt.Fprintf(w, "    (splitting off the holdout copies the rows as read: %s at once)\n", bytesText(mem.Split))
+	}
+	fmt.Fprintf(w, "    the tool itself      %s\n", bytesText(toolBytes))
 }
 
 // optimState returns the name of the method a spec trains with and the

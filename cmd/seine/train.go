@@ -121,6 +121,9 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	if err := refuseOverwrite("-checkpoint", f.checkpoint, "spec", f.spec, "data", f.data, "-out", f.out); err != nil {
 		return err
 	}
+	if guess := rowsGuess(f.data); guess > 0 {
+		limitHeap(s, nil, guess, int(f.holdout*float64(guess)))
+	}
 	set, err := loadData(ctx, f.data, withComma(dataFor(s, f.label), comma))
 	if err != nil {
 		return err
@@ -134,6 +137,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		}
 	}
 
+	limitHeap(s, set, set.Rows(), int(f.holdout*float64(set.Rows())))
 	trainSet, hold := set, (*data.Set)(nil)
 	if f.holdout > 0 {
 		if trainSet, hold, err = data.Split(set, f.holdout, s.Init.Seed); err != nil {
