@@ -119,27 +119,8 @@ var ErrNotFiniteParams = errors.New("train: params not finite")
 // so that a caller can still save the last good params: check Result.Model
 // before giving up. The model never holds non-finite params.
 func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Result, error) {
-	if s == nil || set == nil {
-		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
-	}
-	if err := fit.CheckSpec(s); err != nil {
+	if err := checkConfig(s, set, cfg); err != nil {
 		return nil, err
-	}
-	if err := fit.CheckSet(s, set, "training"); err != nil {
-		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
-	}
-	if cfg.Holdout != nil {
-		if err := fit.CheckSet(s, cfg.Holdout, "holdout"); err != nil {
-			return nil, fmt.Errorf("%w: %w", ErrConfig, err)
-		}
-	} else if cfg.KeepBest || cfg.Patience > 0 || cfg.Calibrate || cfg.Thresholds != nil {
-		return nil, fmt.Errorf("%w: keeping the best params, patience, calibration and thresholds need holdout rows", ErrConfig)
-	}
-	if cfg.Thresholds != nil && s.Output.Activation != spec.Sigmoid {
-		return nil, fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrConfig)
-	}
-	if cfg.Patience < 0 || cfg.Batch < 0 || cfg.Workers < 0 {
-		return nil, fmt.Errorf("%w: patience, batch and workers must not be negative", ErrConfig)
 	}
 	seed := s.Init.Seed
 	if cfg.Seed != 0 {
@@ -154,128 +135,70 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	}
 	lim, batch := fit.Defaults(s, cfg.Limits, cfg.Batch)
 
-	prep, err := fit.Prepare(s, set, cfg.Holdout, cfg.NoScale)
+	r := newRun(set, cfg, seed)
+	defer r.close()
+	if err := r.prepare(s, batch); err != nil {
+		return nil, err
+	}
+	x0, err := r.initialParams()
 	if err != nil {
 		return nil, err
 	}
-	x, hx, warn := prep.X, prep.HoldoutX, prep.Warnings
-	net, err := nn.Compile(prep.Spec)
-	if err != nil {
-		return nil, err
-	}
-	weights, wwarn := fit.ClassWeights(s, set)
-	warn = append(warn, wwarn...)
-	obj, err := nn.NewObjective(net, x, set.Y, nn.ObjectiveOptions{Batch: batch, Workers: cfg.Workers, ClassWeights: weights})
-	if err != nil {
-		return nil, fmt.Errorf("train: training rows: %w", err)
-	}
-	defer obj.Close()
-	var hold *fit.Scorer
-	if cfg.Holdout != nil {
-		if hold, err = fit.NewScorer(net, hx, cfg.Holdout, cfg.Workers); err != nil {
-			return nil, fmt.Errorf("train: holdout rows: %w", err)
-		}
-		defer hold.Close()
-	}
 
-	x0 := cfg.Start
-	if x0 == nil {
-		x0 = make([]float64, net.NumParams())
-		net.Init(x0, seed)
-	} else if len(x0) != net.NumParams() {
-		return nil, fmt.Errorf("%w: start has %d params, the net has %d", ErrConfig, len(x0), net.NumParams())
-	}
-
-	res := &Result{BestIter: -1, Warnings: warn}
-	var best []float64
-	bestCost := math.Inf(1)
-	sinceBest := 0
-	userObs := lim.Observer
-	checkpointFailed := false
-	lim.Observer = func(st optim.Step, xk []float64) bool {
-		if ck := cfg.Checkpoint; ck.Every > 0 && ck.Save != nil && st.Iter%ck.Every == 0 && !checkpointFailed {
-			checkpointFailed = saveCheckpoint(ck, prep, set, seed, st, xk) != nil
-		}
-		p := Progress{Step: st, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN()}
-		stop := false
-		if hold != nil {
-			p.HoldoutCost, p.HoldoutAccuracy = hold.Measure(xk)
-			if p.HoldoutCost < bestCost {
-				bestCost, sinceBest, res.BestIter = p.HoldoutCost, 0, st.Iter
-				if cfg.KeepBest {
-					best = append(best[:0], xk...)
-				}
-			} else {
-				sinceBest++
-				if cfg.Patience > 0 && sinceBest >= cfg.Patience {
-					stop = true
-				}
-			}
-		}
-		res.Trace = append(res.Trace, p)
-		if cfg.Progress != nil && cfg.Progress(p) {
-			stop = true
-		}
-		if userObs != nil && userObs(st, xk) {
-			stop = true
-		}
-		return stop
-	}
+	r.userObs = lim.Observer
+	lim.Observer = r.observe
 	start := time.Now()
-	run, runErr := optim.Minimize(ctx, obj, x0, method, lim)
-	res.Run = run
-	if run.X == nil {
+	out, runErr := optim.Minimize(ctx, r.obj, x0, method, lim)
+	if out.X == nil {
 		return nil, fmt.Errorf("train: %w", runErr)
 	}
-	params := run.X
-	if cfg.KeepBest && best != nil {
-		params = best
-	} else {
-		res.BestIter = run.Iterations
-	}
-	for i, v := range params {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("%w: param %d is %v after %s: refusing to build a model: %w", ErrNotFiniteParams, i, v, run.Status, runErr)
-		}
-	}
-	model, err := nn.NewModel(prep.Spec, params, prep.Encoder, set.Classes)
+	params, err := r.params(out, runErr)
 	if err != nil {
 		return nil, err
 	}
-	model.Label = set.Label
-	model.Summary = nn.Summary{
-		Method:       methodName(method),
-		Iterations:   run.Iterations,
-		Evaluations:  run.Evaluations,
-		Seconds:      time.Since(start).Seconds(),
-		Status:       run.Status,
-		Cost:         obj.Eval(nil, params),
-		TrainRows:    set.Rows(),
-		Seed:         seed,
-		Library:      nn.Version,
-		ClassWeights: weights,
-	}
-	ts, err := fit.NewScorer(net, x, set, cfg.Workers)
+	model, err := r.buildModel(method, out, params, start)
 	if err != nil {
-		return nil, fmt.Errorf("train: training rows: %w", err)
+		return nil, err
 	}
-	defer ts.Close()
-	model.Summary.TrainAccuracy = ts.Accuracy(params)
-	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
-	noDecision(model)
-	if hold != nil {
-		model.Summary.HoldoutRows = cfg.Holdout.Rows()
-		model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = hold.Measure(params)
-		if err := decide(model, params, hx, cfg.Holdout, cfg); err != nil {
-			return nil, err
-		}
+	if err := r.measureHoldout(model, params); err != nil {
+		return nil, err
 	}
-	res.Warnings = append(res.Warnings, fitWarnings(model, set, cfg.Holdout, run)...)
-	res.Model = model
+	res := &Result{Model: model, Run: out, Trace: r.trace, BestIter: r.bestIter,
+		Warnings: append(r.warn, fitWarnings(model, set, cfg.Holdout, out)...)}
 	if runErr != nil {
 		return res, fmt.Errorf("train: %w", runErr)
 	}
 	return res, nil
+}
+
+// checkConfig reports how s, set and cfg cannot make a training run: a nil
+// spec or set, an invalid spec, rows that do not fit the spec, options
+// that need a holdout without one, thresholds for a softmax output, or
+// negative counts.
+func checkConfig(s *spec.Network, set *data.Set, cfg Config) error {
+	if s == nil || set == nil {
+		return fmt.Errorf("%w: nil spec or data set", ErrConfig)
+	}
+	if err := fit.CheckSpec(s); err != nil {
+		return err
+	}
+	if err := fit.CheckSet(s, set, "training"); err != nil {
+		return fmt.Errorf("%w: %w", ErrConfig, err)
+	}
+	if cfg.Holdout != nil {
+		if err := fit.CheckSet(s, cfg.Holdout, "holdout"); err != nil {
+			return fmt.Errorf("%w: %w", ErrConfig, err)
+		}
+	} else if cfg.KeepBest || cfg.Patience > 0 || cfg.Calibrate || cfg.Thresholds != nil {
+		return fmt.Errorf("%w: keeping the best params, patience, calibration and thresholds need holdout rows", ErrConfig)
+	}
+	if cfg.Thresholds != nil && s.Output.Activation != spec.Sigmoid {
+		return fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrConfig)
+	}
+	if cfg.Patience < 0 || cfg.Batch < 0 || cfg.Workers < 0 {
+		return fmt.Errorf("%w: patience, batch and workers must not be negative", ErrConfig)
+	}
+	return nil
 }
 
 // saveCheckpoint hands ck.Save a model of the params xk at the step st,
