@@ -2,11 +2,13 @@ package diag
 
 import (
 	"context"
-	"errors"
 	"math"
 	"os"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/optim"
@@ -17,23 +19,17 @@ import (
 func readSet(t testing.TB, name string) *data.Set {
 	t.Helper()
 	f, err := os.Open("testdata/" + name)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer f.Close()
 	set, err := data.ReadCSV(f, data.CSVOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err, "reading %s", name)
 	return set
 }
 
 func parseSpec(t testing.TB, text string) *spec.Network {
 	t.Helper()
 	s, err := spec.Parse(strings.NewReader(text))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return s
 }
 
@@ -62,12 +58,8 @@ func TestCompareConvexIris(t *testing.T) {
 		Limits:     optim.Limits{Iterations: 3000, GradTol: 1e-10},
 		Seeds:      2,
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := c.Seeds; len(got) != 2 || got[0] != 1 || got[1] != 2 {
-		t.Fatalf("seeds = %v, want [1 2] (spec init.seed 1, then +1)", got)
-	}
+	require.NoError(t, err)
+	require.Equal(t, []uint64{1, 2}, c.Seeds, "seeds (spec init.seed 1, then +1)")
 	for k := range c.Seeds {
 		ref := c.Runs[2][k].Cost // L-BFGS
 		for i, name := range c.Methods {
@@ -75,12 +67,8 @@ func TestCompareConvexIris(t *testing.T) {
 			t.Logf("seed %d %s: cost %.12g after %d iterations (%s)", c.Seeds[k], name, r.Cost, r.Iterations, r.Status)
 			// 1e-6 relative: the brief's bound for one convex minimum
 			// reached by three methods to GradTol 1e-10.
-			if rel := math.Abs(r.Cost-ref) / ref; rel > 1e-6 {
-				t.Errorf("seed %d: %s cost %.12g, lbfgs %.12g: relative difference %.2g > 1e-6", c.Seeds[k], name, r.Cost, ref, rel)
-			}
-			if r.Cost < c.Best[k] {
-				t.Errorf("seed %d: %s cost %g below the best %g", c.Seeds[k], name, r.Cost, c.Best[k])
-			}
+			assert.InEpsilon(t, ref, r.Cost, 1e-6, "seed %d: %s cost %.12g, lbfgs %.12g", c.Seeds[k], name, r.Cost, ref)
+			assert.GreaterOrEqual(t, r.Cost, c.Best[k], "seed %d: %s cost below the best", c.Seeds[k], name)
 		}
 	}
 }
@@ -98,38 +86,29 @@ func TestCompareDeterministic(t *testing.T) {
 		Holdout:    0.2,
 	}
 	a, err := Compare(context.Background(), s, set, cfg)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	b, err := Compare(context.Background(), s, set, cfg)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for i := range a.Methods {
 		for k := range a.Seeds {
 			ra, rb := a.Runs[i][k], b.Runs[i][k]
-			if ra.Cost != rb.Cost || ra.Evaluations != rb.Evaluations || len(ra.Trace) != len(rb.Trace) {
-				t.Errorf("%s seed %d: runs differ: %g/%g evals %g/%g", a.Methods[i], a.Seeds[k], ra.Cost, rb.Cost, ra.Evaluations, rb.Evaluations)
-			}
-			if math.IsNaN(ra.HoldoutAccuracy) || ra.HoldoutAccuracy < 0 || ra.HoldoutAccuracy > 1 {
-				t.Errorf("%s: holdout accuracy %g, want a share", a.Methods[i], ra.HoldoutAccuracy)
-			}
+			assert.Equal(t, ra.Cost, rb.Cost, "%s seed %d: runs differ in cost", a.Methods[i], a.Seeds[k])
+			assert.Equal(t, ra.Evaluations, rb.Evaluations, "%s seed %d: runs differ in evaluations", a.Methods[i], a.Seeds[k])
+			assert.Equal(t, len(ra.Trace), len(rb.Trace), "%s seed %d: runs differ in trace length", a.Methods[i], a.Seeds[k])
+			// NaN fails both comparisons.
+			assert.GreaterOrEqual(t, ra.HoldoutAccuracy, 0.0, "%s: holdout accuracy %g, want a share", a.Methods[i], ra.HoldoutAccuracy)
+			assert.LessOrEqual(t, ra.HoldoutAccuracy, 1.0, "%s: holdout accuracy %g, want a share", a.Methods[i], ra.HoldoutAccuracy)
 		}
-		if a.Runs[i][0].Trace[0].Cost == a.Runs[i][1].Trace[0].Cost {
-			t.Errorf("%s: seeds 1 and 2 give the same first cost; fresh params expected", a.Methods[i])
-		}
+		assert.NotEqual(t, a.Runs[i][0].Trace[0].Cost, a.Runs[i][1].Trace[0].Cost, "%s: seeds 1 and 2 give the same first cost; fresh params expected", a.Methods[i])
 	}
 	// 150 rows, holdout 0.2: round(0.2·150) = 30 rows held out, 10 per
 	// class (data.Split's documented apportionment).
-	if a.TrainRows != 120 || a.HoldoutRows != 30 {
-		t.Errorf("rows = %d + %d, want 120 + 30", a.TrainRows, a.HoldoutRows)
-	}
+	assert.Equal(t, 120, a.TrainRows, "training rows")
+	assert.Equal(t, 30, a.HoldoutRows, "holdout rows")
 	// Adam's batches of DefaultBatch rows over 120 rows: 3 batches of
 	// 32 and one of 24, so one epoch counts 32/120·3 + 24/120 = 1
 	// evaluation (optim's accounting); 20 epochs count 20.
-	if got := a.Runs[1][0].Evaluations; math.Abs(got-20) > 1e-9 {
-		t.Errorf("adam evaluations = %g, want 20", got)
-	}
+	assert.InDelta(t, 20, a.Runs[1][0].Evaluations, 1e-9, "adam evaluations")
 }
 
 // TestCompareFeedsProfile checks that the evaluations to target that
@@ -146,25 +125,17 @@ func TestCompareFeedsProfile(t *testing.T) {
 		Limits:     optim.Limits{Iterations: 200},
 		Seeds:      3,
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	c2, err := Compare(context.Background(), s, set, CompareConfig{
 		Optimizers: []spec.Optimizer{spec.GD, spec.LBFGS, spec.Adam},
 		Limits:     optim.Limits{Iterations: 5},
 		Seed:       10,
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	comps := []*Comparison{c, c2}
 	solvers, table, err := ProfileTable(comps, false)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if len(table) != 4 {
-		t.Fatalf("%d problem rows, want 3 seeds + 1 seed", len(table))
-	}
+	require.NoError(t, err)
+	require.Len(t, table, 4, "problem rows, want 3 seeds + 1 seed")
 	row := 0
 	for _, cc := range comps {
 		for k := range cc.Seeds {
@@ -177,9 +148,7 @@ func TestCompareFeedsProfile(t *testing.T) {
 			// Definition of the target (brief): within 1% of the best
 			// cost any method reached on that seed.
 			target := best * 1.01
-			if math.Abs(cc.Targets[k]-target) > 1e-15*target {
-				t.Errorf("seed %d: target %g, want %g", cc.Seeds[k], cc.Targets[k], target)
-			}
+			assert.InEpsilon(t, target, cc.Targets[k], 1e-15, "seed %d: target", cc.Seeds[k])
 			for i := range cc.Methods {
 				want := math.Inf(1)
 				for _, tp := range cc.Runs[i][k].Trace {
@@ -188,23 +157,17 @@ func TestCompareFeedsProfile(t *testing.T) {
 						break
 					}
 				}
-				if got := table[row][i]; got != want {
-					t.Errorf("problem %d, %s: table %g, trace says %g", row, solvers[i], got, want)
-				}
+				assert.Equal(t, want, table[row][i], "problem %d, %s: table against the trace", row, solvers[i])
 			}
 			row++
 		}
 	}
 	// The short run: only its best method can be within 1%, and Adam's 5
 	// epochs at rate 0.001 leave it far above (its cost barely moves).
-	if !math.IsInf(table[3][2], 1) {
-		t.Errorf("adam in 5 epochs reached the target (%g evaluations); the test expects a failure", table[3][2])
-	}
+	assert.True(t, math.IsInf(table[3][2], 1), "adam in 5 epochs reached the target (%g evaluations); the test expects a failure", table[3][2])
 
 	byEvals, bySecs, err := Profiles(comps)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// ρ_s(1) is the share of problems s wins (Dolan & Moré 2002, §2),
 	// counted here straight from the table.
 	for s := range solvers {
@@ -218,22 +181,18 @@ func TestCompareFeedsProfile(t *testing.T) {
 				wins++
 			}
 		}
-		if got, want := byEvals.At(s, 1), float64(wins)/4; got != want {
-			t.Errorf("%s: ρ(1) = %g, want %g", solvers[s], got, want)
-		}
-		if r := bySecs.At(s, math.Inf(1)); r < 0 || r > 1 {
-			t.Errorf("%s: time profile ρ(∞) = %g", solvers[s], r)
-		}
+		assert.Equal(t, float64(wins)/4, byEvals.At(s, 1), "%s: ρ(1)", solvers[s])
+		r := bySecs.At(s, math.Inf(1))
+		assert.GreaterOrEqual(t, r, 0.0, "%s: time profile ρ(∞) outside [0,1]", solvers[s])
+		assert.LessOrEqual(t, r, 1.0, "%s: time profile ρ(∞) outside [0,1]", solvers[s])
 	}
 
 	// Comparisons of different methods cannot share a profile.
 	c3 := &Comparison{Methods: []string{"gd"}, Seeds: []uint64{1}, Runs: [][]Run{{{}}}}
-	if _, _, err := ProfileTable([]*Comparison{c, c3}, false); !errors.Is(err, ErrConfig) {
-		t.Errorf("mismatched methods: err = %v, want ErrConfig", err)
-	}
-	if _, _, err := ProfileTable(nil, false); !errors.Is(err, ErrNoProblems) {
-		t.Errorf("no comparisons: err = %v, want ErrNoProblems", err)
-	}
+	_, _, err = ProfileTable([]*Comparison{c, c3}, false)
+	assert.ErrorIs(t, err, ErrConfig, "mismatched methods")
+	_, _, err = ProfileTable(nil, false)
+	assert.ErrorIs(t, err, ErrNoProblems, "no comparisons")
 }
 
 func TestCompareErrors(t *testing.T) {
@@ -259,17 +218,12 @@ func TestCompareErrors(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			c, err := Compare(context.Background(), tt.s, set, tt.cfg)
-			if !errors.Is(err, ErrConfig) {
-				t.Fatalf("err = %v, want ErrConfig", err)
-			}
-			if c != nil {
-				t.Error("comparison returned with the error")
-			}
+			require.ErrorIs(t, err, ErrConfig)
+			assert.Nil(t, c, "comparison returned with the error")
 		})
 	}
-	if _, err := Compare(context.Background(), nil, set, CompareConfig{}); !errors.Is(err, ErrConfig) {
-		t.Errorf("nil spec: err = %v", err)
-	}
+	_, err := Compare(context.Background(), nil, set, CompareConfig{})
+	assert.ErrorIs(t, err, ErrConfig, "nil spec")
 }
 
 func TestCompareCancelled(t *testing.T) {
@@ -278,30 +232,27 @@ func TestCompareCancelled(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	c, err := Compare(ctx, s, set, CompareConfig{Seeds: 2})
-	if !errors.Is(err, context.Canceled) {
-		t.Fatalf("err = %v, want context.Canceled", err)
-	}
-	if c != nil {
-		t.Errorf("comparison with no complete seed: got %d seeds, want nil", len(c.Seeds))
-	}
+	require.ErrorIs(t, err, context.Canceled)
+	assert.Nil(t, c, "comparison with no complete seed, want nil")
 }
 
 func TestSpreadOf(t *testing.T) {
 	// Medians worked by hand: odd count → middle value; even → mean of
 	// the middle two (common practice).
-	for _, tt := range []struct {
+	tests := []struct {
+		name string
 		v    []float64
 		want Spread
 	}{
-		{[]float64{3, 1, 2}, Spread{2, 1, 3}},
-		{[]float64{4, 1, 3, 2}, Spread{2.5, 1, 4}},
-		{[]float64{math.NaN(), 5}, Spread{5, 5, 5}},
-	} {
-		if got := spreadOf(tt.v); got != tt.want {
-			t.Errorf("spreadOf(%v) = %v, want %v", tt.v, got, tt.want)
-		}
+		{"odd count", []float64{3, 1, 2}, Spread{2, 1, 3}},
+		{"even count", []float64{4, 1, 3, 2}, Spread{2.5, 1, 4}},
+		{"NaN left out", []float64{math.NaN(), 5}, Spread{5, 5, 5}},
 	}
-	if got := spreadOf(nil); !math.IsNaN(got.Median) {
-		t.Errorf("spreadOf(nil) = %v, want NaN", got)
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			assert.Equal(t, tt.want, spreadOf(tt.v), "spreadOf(%v)", tt.v)
+		})
 	}
+	got := spreadOf(nil)
+	assert.True(t, math.IsNaN(got.Median), "spreadOf(nil) = %v, want NaN", got)
 }

@@ -2,10 +2,12 @@ package diag
 
 import (
 	"context"
-	"errors"
 	"math"
 	"os"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"github.com/seine-ml/seine/data"
 	"github.com/seine-ml/seine/encode"
@@ -27,48 +29,34 @@ import (
 // rows, 0.109 at 2250).
 func TestLearningCurveTriage(t *testing.T) {
 	f, err := os.Open("../examples/triage/triage.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	s, err := spec.Parse(f)
 	f.Close()
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	f, err = os.Open("../examples/triage/sessions.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	set, err := data.ReadCSV(f, data.CSVOptions{Columns: encode.ColumnsFor(s), MissingTokens: s.MissingTokens, Classes: s.Output.Classes})
 	f.Close()
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	c, err := LearningCurve(context.Background(), s, set, CurveConfig{Steps: 3, Limits: optim.Limits{Iterations: 200}})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for _, p := range c.Points {
 		t.Logf("%4d rows: train %.4f holdout %.4f", p.Rows, p.TrainCost, p.HoldoutCost)
 	}
 	// 3000 rows, holdout 0.25: 750 held out, 2250 for training, sizes
 	// round(i·2250/3) = 750, 1500, 2250.
-	if c.HoldoutRows != 750 || len(c.Points) != 3 || c.Points[0].Rows != 750 || c.Points[2].Rows != 2250 {
-		t.Fatalf("holdout %d, points %+v", c.HoldoutRows, c.Points)
-	}
+	require.Equal(t, 750, c.HoldoutRows, "holdout rows")
+	require.Len(t, c.Points, 3, "points %+v", c.Points)
+	require.Equal(t, 750, c.Points[0].Rows, "rows of the first point")
+	require.Equal(t, 2250, c.Points[2].Rows, "rows of the last point")
 	first, last := c.Points[0], c.Points[2]
-	if !(last.TrainCost > first.TrainCost) {
-		t.Errorf("training cost did not rise: %.4f at %d rows, %.4f at %d", first.TrainCost, first.Rows, last.TrainCost, last.Rows)
-	}
-	if !(last.HoldoutCost < first.HoldoutCost) {
-		t.Errorf("holdout cost did not fall: %.4f at %d rows, %.4f at %d", first.HoldoutCost, first.Rows, last.HoldoutCost, last.Rows)
-	}
+	assert.Greater(t, last.TrainCost, first.TrainCost, "training cost did not rise: %.4f at %d rows, %.4f at %d", first.TrainCost, first.Rows, last.TrainCost, last.Rows)
+	assert.Less(t, last.HoldoutCost, first.HoldoutCost, "holdout cost did not fall: %.4f at %d rows, %.4f at %d", first.HoldoutCost, first.Rows, last.HoldoutCost, last.Rows)
 	// The classes of the triage demo have unequal shares, so the
 	// baseline lies below ln 5 (the cross-entropy of a uniform guess over
 	// five classes; common practice) and above 0.
-	if !(c.Baseline > 0 && c.Baseline < math.Log(5)) {
-		t.Errorf("baseline %g outside (0, ln 5)", c.Baseline)
-	}
+	assert.Greater(t, c.Baseline, 0.0, "baseline outside (0, ln 5)")
+	assert.Less(t, c.Baseline, math.Log(5), "baseline outside (0, ln 5)")
 }
 
 // TestBaselineIris: with equal class shares the baseline is the
@@ -77,13 +65,9 @@ func TestLearningCurveTriage(t *testing.T) {
 func TestBaselineIris(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	tr, ho, err := data.Split(set, 0.2, 1)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// ln 3 exactly up to the rounding of a mean of 30 equal logs.
-	if got := baseline(tr, ho); math.Abs(got-math.Log(3)) > 1e-12 {
-		t.Errorf("baseline = %.15g, want ln 3 = %.15g", got, math.Log(3))
-	}
+	assert.InDelta(t, math.Log(3), baseline(tr, ho), 1e-12, "baseline, want ln 3")
 }
 
 // TestStratifiedOrder: every prefix of k rows holds each class c close to
@@ -101,27 +85,18 @@ func TestStratifiedOrder(t *testing.T) {
 	got := make([]int, len(counts))
 	bound := 0.5 + float64(len(counts))/2
 	for k, row := range order {
-		if seen[row] {
-			t.Fatalf("row %d twice", row)
-		}
+		require.False(t, seen[row], "row %d twice", row)
 		seen[row] = true
 		got[labels[row]]++
 		for c, nc := range counts {
 			want := float64(k+1) * float64(nc) / n
-			if d := math.Abs(float64(got[c]) - want); d > bound {
-				t.Fatalf("prefix %d: class %d has %d rows, share says %.2f", k+1, c, got[c], want)
-			}
+			d := math.Abs(float64(got[c]) - want)
+			require.LessOrEqual(t, d, bound, "prefix %d: class %d has %d rows, share says %.2f", k+1, c, got[c], want)
 		}
 	}
-	if len(order) != set.Rows() {
-		t.Fatalf("order has %d rows, want %d", len(order), set.Rows())
-	}
+	require.Len(t, order, set.Rows(), "rows of the order")
 	again := stratifiedOrder(set, 5)
-	for i := range order {
-		if order[i] != again[i] {
-			t.Fatal("same seed, different order")
-		}
-	}
+	require.Equal(t, order, again, "same seed, different order")
 }
 
 // TestShapeOf checks the documented rules on hand-made curves (B = 1).
@@ -139,9 +114,9 @@ func TestShapeOf(t *testing.T) {
 		{"one point, wide", []CurvePoint{pt(0.1, 0.5)}, HighVariance},
 	}
 	for _, tt := range tests {
-		if got := shapeOf(tt.pts, 1); got != tt.want {
-			t.Errorf("%s: %v, want %v", tt.name, got, tt.want)
-		}
+		t.Run(tt.name, func(t *testing.T) {
+			assert.Equal(t, tt.want, shapeOf(tt.pts, 1))
+		})
 	}
 }
 
@@ -149,14 +124,22 @@ func TestLearningCurveErrors(t *testing.T) {
 	s := parseSpec(t, irisLogistic)
 	set := readSet(t, "iris.csv")
 	ctx := context.Background()
-	for _, cfg := range []CurveConfig{{Steps: -1}, {Holdout: 1.5}, {Steps: 500}} {
-		if _, err := LearningCurve(ctx, s, set, cfg); !errors.Is(err, ErrConfig) {
-			t.Errorf("%+v: err = %v, want ErrConfig", cfg, err)
-		}
+	tests := []struct {
+		name string
+		cfg  CurveConfig
+	}{
+		{"negative steps", CurveConfig{Steps: -1}},
+		{"holdout 1.5", CurveConfig{Holdout: 1.5}},
+		{"500 steps", CurveConfig{Steps: 500}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			_, err := LearningCurve(ctx, s, set, tt.cfg)
+			assert.ErrorIs(t, err, ErrConfig, "%+v", tt.cfg)
+		})
 	}
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	if _, err := LearningCurve(cctx, s, set, CurveConfig{}); !errors.Is(err, context.Canceled) {
-		t.Errorf("cancelled: err = %v", err)
-	}
+	_, err := LearningCurve(cctx, s, set, CurveConfig{})
+	assert.ErrorIs(t, err, context.Canceled, "cancelled")
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"testing"
 
+	"github.com/stretchr/testify/require"
 	"go.uber.org/goleak"
 
 	"github.com/seine-ml/seine/optim"
@@ -29,12 +30,8 @@ func TestDiagnosticsLeaveNoGoroutine(t *testing.T) {
 	_, err := Compare(context.Background(), s, set, CompareConfig{
 		Optimizers: []spec.Optimizer{spec.LBFGS, spec.Adam}, Limits: optim.Limits{Iterations: 5}, Workers: 3, Holdout: 0.2,
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err, "Compare")
 	_, err = SweepPenalty(context.Background(), s, set, []float64{0.1, 1}, SweepConfig{Folds: 2, Limits: optim.Limits{Iterations: 5}, Workers: 3})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err, "SweepPenalty")
 	goleak.VerifyNone(t, before)
 }

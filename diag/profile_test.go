@@ -1,11 +1,13 @@
 package diag
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // The hand-computed table below follows the definitions of Dolan & Moré
@@ -33,23 +35,17 @@ var handTable = [][]float64{
 
 func TestProfileHand(t *testing.T) {
 	p, err := NewProfile([]string{"A", "B", "C"}, handTable)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	// Breakpoints worked by hand above (Dolan & Moré 2002 definitions).
 	wantTaus := []float64{1, 2, 4}
-	if fmt.Sprint(p.Taus) != fmt.Sprint(wantTaus) {
-		t.Fatalf("Taus = %v, want %v", p.Taus, wantTaus)
-	}
+	require.Equal(t, wantTaus, p.Taus, "Taus")
 	// Rho worked by hand above; fractions of 4 are exact in float64.
 	wantRho := [][]float64{
 		{0.25, 0.5, 0.5},
 		{0.25, 0.75, 0.75},
 		{0.5, 0.5, 0.75},
 	}
-	if fmt.Sprint(p.Rho) != fmt.Sprint(wantRho) {
-		t.Fatalf("Rho = %v, want %v", p.Rho, wantRho)
-	}
+	require.Equal(t, wantRho, p.Rho, "Rho")
 
 	tests := []struct {
 		name string
@@ -71,34 +67,35 @@ func TestProfileHand(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			// Exact: every value is k/4 read off the hand table.
-			if got := p.At(tt.s, tt.tau); got != tt.want {
-				t.Errorf("At(%d, %g) = %g, want %g", tt.s, tt.tau, got, tt.want)
-			}
+			assert.Equal(t, tt.want, p.At(tt.s, tt.tau), "At(%d, %g)", tt.s, tt.tau)
 		})
 	}
 }
 
 func TestProfileAtBad(t *testing.T) {
 	p, err := NewProfile([]string{"A", "B", "C"}, handTable)
-	if err != nil {
-		t.Fatal(err)
+	require.NoError(t, err)
+	tests := []struct {
+		name string
+		s    int
+		tau  float64
+	}{
+		{"solver below 0", -1, 1},
+		{"solver past the last", 3, 1},
+		{"NaN tau", 0, math.NaN()},
 	}
-	for _, c := range []struct {
-		s   int
-		tau float64
-	}{{-1, 1}, {3, 1}, {0, math.NaN()}} {
-		if got := p.At(c.s, c.tau); !math.IsNaN(got) {
-			t.Errorf("At(%d, %g) = %g, want NaN", c.s, c.tau, got)
-		}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			got := p.At(tt.s, tt.tau)
+			assert.True(t, math.IsNaN(got), "At(%d, %g) = %g, want NaN", tt.s, tt.tau, got)
+		})
 	}
 	var nilp *Profile
-	if got := nilp.At(0, 1); !math.IsNaN(got) {
-		t.Errorf("nil At = %g, want NaN", got)
-	}
+	got := nilp.At(0, 1)
+	assert.True(t, math.IsNaN(got), "nil At = %g, want NaN", got)
 	short := &Profile{Solvers: []string{"A"}, Taus: []float64{1, 2}, Rho: [][]float64{{1}}}
-	if got := short.At(0, 3); !math.IsNaN(got) {
-		t.Errorf("short Rho At = %g, want NaN", got)
-	}
+	got = short.At(0, 3)
+	assert.True(t, math.IsNaN(got), "short Rho At = %g, want NaN", got)
 }
 
 func TestNewProfileErrors(t *testing.T) {
@@ -118,12 +115,8 @@ func TestNewProfileErrors(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			p, err := NewProfile(tt.solvers, tt.cost)
-			if !errors.Is(err, tt.want) {
-				t.Fatalf("err = %v, want %v", err, tt.want)
-			}
-			if p != nil {
-				t.Errorf("profile = %v, want nil", p)
-			}
+			require.ErrorIs(t, err, tt.want)
+			assert.Nil(t, p, "profile returned with the error")
 		})
 	}
 }
@@ -159,16 +152,10 @@ func TestProfileProperties(t *testing.T) {
 			solvers[s] = fmt.Sprint("s", s)
 		}
 		prof, err := NewProfile(solvers, cost)
-		if err != nil {
-			t.Fatalf("trial %d: %v", trial, err)
-		}
-		if prof.Taus[0] != 1 {
-			t.Fatalf("trial %d: Taus[0] = %g, want 1", trial, prof.Taus[0])
-		}
+		require.NoError(t, err, "trial %d", trial)
+		require.Equal(t, 1.0, prof.Taus[0], "trial %d: Taus[0]", trial)
 		for i := 1; i < len(prof.Taus); i++ {
-			if !(prof.Taus[i] > prof.Taus[i-1]) {
-				t.Fatalf("trial %d: Taus not strictly increasing: %v", trial, prof.Taus)
-			}
+			require.Greater(t, prof.Taus[i], prof.Taus[i-1], "trial %d: Taus not strictly increasing: %v", trial, prof.Taus)
 		}
 		last := prof.Taus[len(prof.Taus)-1]
 		for s := range ns {
@@ -190,20 +177,14 @@ func TestProfileProperties(t *testing.T) {
 			}
 			// Counts over np are compared to within one ulp-scale slack.
 			const tol = 1e-12
-			if got, want := prof.At(s, 1), float64(wins)/float64(np); math.Abs(got-want) > tol {
-				t.Errorf("trial %d solver %d: ρ(1) = %g, want wins %g", trial, s, got, want)
-			}
-			if got, want := prof.At(s, last), float64(solvedBy)/float64(np); math.Abs(got-want) > tol {
-				t.Errorf("trial %d solver %d: ρ(r_M) = %g, want solved %g", trial, s, got, want)
-			}
+			assert.InDelta(t, float64(wins)/float64(np), prof.At(s, 1), tol, "trial %d solver %d: ρ(1), want the share of wins", trial, s)
+			assert.InDelta(t, float64(solvedBy)/float64(np), prof.At(s, last), tol, "trial %d solver %d: ρ(r_M), want the share solved", trial, s)
 			for i := 1; i < len(prof.Rho[s]); i++ {
-				if prof.Rho[s][i] < prof.Rho[s][i-1] {
-					t.Errorf("trial %d solver %d: ρ decreases at τ=%g", trial, s, prof.Taus[i])
-				}
+				assert.GreaterOrEqual(t, prof.Rho[s][i], prof.Rho[s][i-1], "trial %d solver %d: ρ decreases at τ=%g", trial, s, prof.Taus[i])
 			}
-			if r := prof.Rho[s][len(prof.Rho[s])-1]; r < 0 || r > 1 {
-				t.Errorf("trial %d solver %d: ρ = %g outside [0,1]", trial, s, r)
-			}
+			r := prof.Rho[s][len(prof.Rho[s])-1]
+			assert.GreaterOrEqual(t, r, 0.0, "trial %d solver %d: ρ outside [0,1]", trial, s)
+			assert.LessOrEqual(t, r, 1.0, "trial %d solver %d: ρ outside [0,1]", trial, s)
 		}
 	}
 }

@@ -2,10 +2,11 @@ package diag
 
 import (
 	"context"
-	"errors"
 	"math"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/stat"
 
 	"github.com/seine-ml/seine/data"
@@ -41,40 +42,29 @@ output:
 func TestSweepInteriorWDBC(t *testing.T) {
 	set := readSet(t, "wdbc.csv")
 	_, sub, err := data.SplitIndices(set, 200.0/569, 3)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	lambdas := []float64{0, 0.1, 1, 10, 100, 1000}
 	sw, err := SweepPenalty(context.Background(), parseSpec(t, wdbcNet), set.Subset(sub), lambdas, SweepConfig{
 		NoScale: true,
 		Limits:  optim.Limits{Iterations: 300},
 	})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for _, p := range sw.Points {
 		t.Logf("λ = %-6g train %.4f  valid %.4f [%.4f, %.4f]  accuracy %.3f", p.Lambda, p.TrainCost.Mean, p.ValidCost.Mean, p.ValidCost.Min, p.ValidCost.Max, p.ValidAccuracy.Mean)
 	}
-	if sw.Folds != DefaultFolds || sw.Param != PenaltyL2 {
-		t.Errorf("folds %d param %v, want %d l2", sw.Folds, sw.Param, DefaultFolds)
-	}
+	assert.Equal(t, DefaultFolds, sw.Folds, "folds")
+	assert.Equal(t, PenaltyL2, sw.Param, "param")
 	b := sw.Best
-	if b == 0 || b == len(lambdas)-1 {
-		t.Fatalf("best λ = %g is at an end of the grid", lambdas[b])
-	}
+	require.NotEqual(t, 0, b, "best λ = %g is at an end of the grid", lambdas[0])
+	require.NotEqual(t, len(lambdas)-1, b, "best λ = %g is at an end of the grid", lambdas[len(lambdas)-1])
 	best := sw.Points[b].ValidCost.Mean
 	for _, end := range []int{0, len(lambdas) - 1} {
-		if d := sw.Points[end].ValidCost.Mean - best; d < 0.1 {
-			t.Errorf("validation cost at λ = %g is only %.3g above the best (λ = %g)", lambdas[end], d, lambdas[b])
-		}
+		d := sw.Points[end].ValidCost.Mean - best
+		assert.GreaterOrEqual(t, d, 0.1, "validation cost at λ = %g is only %.3g above the best (λ = %g)", lambdas[end], d, lambdas[b])
 	}
 	for i, p := range sw.Points {
-		if p.Lambda != lambdas[i] {
-			t.Errorf("point %d has λ %g, want %g", i, p.Lambda, lambdas[i])
-		}
-		if p.ValidCost.Mean < sw.Points[b].ValidCost.Mean {
-			t.Errorf("Best is not the lowest validation cost")
-		}
+		assert.Equal(t, lambdas[i], p.Lambda, "λ of point %d", i)
+		assert.GreaterOrEqual(t, p.ValidCost.Mean, sw.Points[b].ValidCost.Mean, "Best is not the lowest validation cost (point %d)", i)
 	}
 }
 
@@ -92,31 +82,23 @@ penalty:
 `)
 	set := readSet(t, "iris.csv")
 	sw, err := SweepUnits(context.Background(), s, set, []int{1, 4}, SweepConfig{Holdout: 0.3, Limits: optim.Limits{Iterations: 100}})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if sw.Folds != 1 || sw.Param != HiddenUnits || len(sw.Points) != 2 {
-		t.Fatalf("sweep = %+v", sw)
-	}
+	require.NoError(t, err)
+	require.Equal(t, 1, sw.Folds, "folds; sweep = %+v", sw)
+	require.Equal(t, HiddenUnits, sw.Param, "param; sweep = %+v", sw)
+	require.Len(t, sw.Points, 2, "points; sweep = %+v", sw)
 	for i, u := range []int{1, 4} {
 		p := sw.Points[i]
-		if p.Units != u || p.Lambda != 0.1 {
-			t.Errorf("point %d: units %d λ %g, want %d and the spec's 0.1", i, p.Units, p.Lambda, u)
-		}
+		assert.Equal(t, u, p.Units, "point %d: units", i)
+		assert.Equal(t, 0.1, p.Lambda, "point %d: λ, want the spec's 0.1", i)
 		// One fit: no spread, SD 0 by definition of statOf.
-		if p.ValidCost.SD != 0 || p.ValidCost.Min != p.ValidCost.Max {
-			t.Errorf("point %d: one fit has a spread: %+v", i, p.ValidCost)
-		}
+		assert.Equal(t, 0.0, p.ValidCost.SD, "point %d: one fit has a spread: %+v", i, p.ValidCost)
+		assert.Equal(t, p.ValidCost.Min, p.ValidCost.Max, "point %d: one fit has a spread: %+v", i, p.ValidCost)
 	}
 	// A small net separates iris to ~0.95 accuracy on held-out rows
 	// (common practice); 0.9 leaves room for a 45-row holdout (one row is
 	// 0.022).
-	if acc := sw.Points[1].ValidAccuracy.Mean; acc < 0.9 {
-		t.Errorf("4 units: validation accuracy %.3f, want ≥ 0.9", acc)
-	}
-	if s.Hidden[0].Units != 3 {
-		t.Errorf("the caller's spec was changed: units %d", s.Hidden[0].Units)
-	}
+	assert.GreaterOrEqual(t, sw.Points[1].ValidAccuracy.Mean, 0.9, "4 units: validation accuracy")
+	assert.Equal(t, 3, s.Hidden[0].Units, "the caller's spec was changed")
 }
 
 func TestSweepErrors(t *testing.T) {
@@ -141,20 +123,16 @@ func TestSweepErrors(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if err := tt.run(); !errors.Is(err, ErrConfig) {
-				t.Errorf("err = %v, want ErrConfig", err)
-			}
+			assert.ErrorIs(t, tt.run(), ErrConfig)
 		})
 	}
 	// More folds than rows: data.Folds's own error, wrapped.
-	if _, err := SweepPenalty(ctx, s, set.Subset([]int{0, 1, 2}), []float64{1}, SweepConfig{Folds: 5}); !errors.Is(err, data.ErrFolds) {
-		t.Errorf("5 folds of 3 rows: err = %v, want data.ErrFolds", err)
-	}
+	_, err := SweepPenalty(ctx, s, set.Subset([]int{0, 1, 2}), []float64{1}, SweepConfig{Folds: 5})
+	assert.ErrorIs(t, err, data.ErrFolds, "5 folds of 3 rows")
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	if _, err := SweepPenalty(cctx, s, set, []float64{1}, SweepConfig{}); !errors.Is(err, context.Canceled) {
-		t.Errorf("cancelled: err = %v", err)
-	}
+	_, err = SweepPenalty(cctx, s, set, []float64{1}, SweepConfig{})
+	assert.ErrorIs(t, err, context.Canceled, "cancelled")
 }
 
 // TestStatOf checks mean and SD against gonum's stat.MeanStdDev (sample
@@ -164,10 +142,8 @@ func TestStatOf(t *testing.T) {
 	st := statOf(v)
 	mean, sd := stat.MeanStdDev(v, nil)
 	// Same formulas in a different order of summation: a few ulps.
-	if math.Abs(st.Mean-mean) > 1e-15 || math.Abs(st.SD-sd) > 1e-15 {
-		t.Errorf("statOf = %+v, gonum mean %g SD %g", st, mean, sd)
-	}
-	if st.Min != 0.1 || st.Max != 0.7 {
-		t.Errorf("range %g–%g, want 0.1–0.7", st.Min, st.Max)
-	}
+	assert.InDelta(t, mean, st.Mean, 1e-15, "statOf mean, against gonum")
+	assert.InDelta(t, sd, st.SD, 1e-15, "statOf SD, against gonum")
+	assert.Equal(t, 0.1, st.Min, "range min")
+	assert.Equal(t, 0.7, st.Max, "range max")
 }

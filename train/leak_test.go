@@ -4,6 +4,7 @@ import (
 	"context"
 	"testing"
 
+	"github.com/stretchr/testify/require"
 	"go.uber.org/goleak"
 
 	"github.com/seine-ml/seine/optim"
@@ -25,8 +26,6 @@ func TestTrainLeavesNoGoroutine(t *testing.T) {
 	}
 	set = set.Subset(idx)
 	_, err := Train(context.Background(), s, set, Config{Workers: 3, Limits: optim.Limits{Iterations: 5}})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	goleak.VerifyNone(t, before)
 }

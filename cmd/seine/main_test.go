@@ -9,6 +9,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // The tests run the built tool as a user would: TestMain builds it once into
@@ -68,7 +71,7 @@ func seine(t testing.TB, args ...string) result {
 		code = ee.ExitCode()
 	} else if err != nil {
 		if t != nil {
-			t.Fatalf("running seine: %v", err)
+			require.NoError(t, err, "running seine")
 		}
 		code = -1
 	}
@@ -86,13 +89,9 @@ func runIn(args ...string) result {
 func copyFile(t *testing.T, src, dir, name string) string {
 	t.Helper()
 	b, err := os.ReadFile(src)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	dst := filepath.Join(dir, name)
-	if err := os.WriteFile(dst, b, 0o644); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, os.WriteFile(dst, b, 0o644))
 	return dst
 }
 
@@ -100,17 +99,12 @@ func copyFile(t *testing.T, src, dir, name string) string {
 func oneLineError(t *testing.T, stderr string, want ...string) {
 	t.Helper()
 	lines := strings.Split(strings.TrimRight(stderr, "\n"), "\n")
-	if len(lines) != 1 {
-		t.Errorf("stderr has %d lines, want 1:\n%s", len(lines), stderr)
-	}
+	assert.Len(t, lines, 1, "stderr has %d lines, want 1:\n%s", len(lines), stderr)
 	for _, w := range want {
-		if !strings.Contains(stderr, w) {
-			t.Errorf("stderr %q lacks %q", stderr, w)
-		}
+		assert.Contains(t, stderr, w, "stderr lacks %q", w)
 	}
-	if strings.Contains(stderr, "goroutine") || strings.Contains(stderr, "panic") {
-		t.Errorf("stderr shows a panic:\n%s", stderr)
-	}
+	assert.NotContains(t, stderr, "goroutine", "stderr shows a panic")
+	assert.NotContains(t, stderr, "panic", "stderr shows a panic")
 }
 
 func TestUsage(t *testing.T) {
@@ -133,13 +127,9 @@ func TestUsage(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := runIn(tt.args...)
-			if r.code != tt.code {
-				t.Fatalf("status %d, want %d; stderr %q", r.code, tt.code, r.stderr)
-			}
+			require.Equal(t, tt.code, r.code, "status; stderr %q", r.stderr)
 			for _, w := range tt.want {
-				if !strings.Contains(r.stderr, w) {
-					t.Errorf("stderr %q lacks %q", r.stderr, w)
-				}
+				assert.Contains(t, r.stderr, w, "stderr lacks %q", w)
 			}
 		})
 	}
@@ -147,13 +137,13 @@ func TestUsage(t *testing.T) {
 
 func TestHelp(t *testing.T) {
 	for _, c := range []string{"train", "evaluate", "predict", "gradient-check", "inspect"} {
-		r := runIn("help", c)
-		if r.code != 0 || !strings.Contains(r.stdout, "Usage: seine "+c) {
-			t.Errorf("help %s: status %d, stdout %q", c, r.code, r.stdout)
-		}
-		r = runIn(c, "-h")
-		if r.code != 0 || !strings.Contains(r.stdout, "Usage: seine "+c) {
-			t.Errorf("%s -h: status %d, stdout %q", c, r.code, r.stdout)
-		}
+		t.Run(c, func(t *testing.T) {
+			r := runIn("help", c)
+			assert.Equal(t, 0, r.code, "help %s: status", c)
+			assert.Contains(t, r.stdout, "Usage: seine "+c, "help %s: stdout", c)
+			r = runIn(c, "-h")
+			assert.Equal(t, 0, r.code, "%s -h: status", c)
+			assert.Contains(t, r.stdout, "Usage: seine "+c, "%s -h: stdout", c)
+		})
 	}
 }

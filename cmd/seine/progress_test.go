@@ -10,6 +10,9 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"github.com/seine-ml/seine/optim"
 	"github.com/seine-ml/seine/train"
 )
@@ -23,15 +26,11 @@ func TestProgressTerminal(t *testing.T) {
 	pr.done()
 	got := b.String()
 	lines := strings.Split(got, "\r")
-	if len(lines) != 3 || lines[0] != "" {
-		t.Fatalf("want two redraws, got %q", got)
-	}
-	if !strings.HasPrefix(lines[1], "[....................]    1/300  cost 1.5  holdout 50.0%  ") {
-		t.Errorf("first bar %q", lines[1])
-	}
-	if !strings.HasPrefix(lines[2], "[####################]  300/300  cost 0.2154  holdout 94.1%  ") || !strings.HasSuffix(got, "\n") {
-		t.Errorf("last bar %q", lines[2])
-	}
+	require.Len(t, lines, 3, "want two redraws, got %q", got)
+	require.Equal(t, "", lines[0], "want two redraws, got %q", got)
+	assert.True(t, strings.HasPrefix(lines[1], "[....................]    1/300  cost 1.5  holdout 50.0%  "), "first bar %q", lines[1])
+	assert.True(t, strings.HasPrefix(lines[2], "[####################]  300/300  cost 0.2154  holdout 94.1%  "), "last bar %q", lines[2])
+	assert.True(t, strings.HasSuffix(got, "\n"), "last bar %q does not end the line", lines[2])
 }
 
 func TestProgressPlainAndQuiet(t *testing.T) {
@@ -42,9 +41,9 @@ func TestProgressPlainAndQuiet(t *testing.T) {
 	}
 	pr.done()
 	// A fast run writes only the first line: later lines need 2 s to pass.
-	if got := b.String(); !strings.HasPrefix(got, "iteration 1/100: cost 1, ") || strings.Count(got, "\n") != 1 {
-		t.Errorf("plain progress %q", got)
-	}
+	got := b.String()
+	assert.True(t, strings.HasPrefix(got, "iteration 1/100: cost 1, "), "plain progress %q", got)
+	assert.Equal(t, 1, strings.Count(got, "\n"), "lines of plain progress %q", got)
 	quiet := newProgress(nil, true, 100)
 	quiet.step(train.Progress{Step: optim.Step{Iter: 1}})
 	quiet.done() // must not panic or write
@@ -56,10 +55,9 @@ func TestProgressPlainAndQuiet(t *testing.T) {
 func TestMultilabelAndBinary(t *testing.T) {
 	dir := t.TempDir()
 	tags := filepath.Join(dir, "tags.seine.json")
-	if r := seine(t, "train", "-spec", "testdata/tags.yaml", "-data", "testdata/tags.csv", "-out", tags, "-iterations", "200", "-quiet"); r.code != 0 {
-		t.Fatalf("train tags: %d %q", r.code, r.stderr)
-	}
-	r := seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv", "-json", "-threshold", "0.4")
+	r := seine(t, "train", "-spec", "testdata/tags.yaml", "-data", "testdata/tags.csv", "-out", tags, "-iterations", "200", "-quiet")
+	require.Equal(t, 0, r.code, "train tags: status; stderr %q", r.stderr)
+	r = seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv", "-json", "-threshold", "0.4")
 	var rep struct {
 		Rows       int      `json:"rows"`
 		Hamming    *float64 `json:"hamming_loss"`
@@ -68,41 +66,43 @@ func TestMultilabelAndBinary(t *testing.T) {
 		Multilabel bool     `json:"multilabel"`
 		Accuracy   float64  `json:"accuracy"`
 	}
-	if err := json.Unmarshal([]byte(r.stdout), &rep); err != nil || r.code != 0 {
-		t.Fatalf("evaluate: %d %v %q", r.code, err, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "evaluate: status; stderr %q", r.stderr)
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &rep), "evaluate: stderr %q", r.stderr)
 	// The tags are the signs of the features: a net of 4 tanh units fits
 	// them exactly (measured accuracy 1 after 25 iterations).
-	if rep.Rows != 60 || rep.Hamming == nil || *rep.Hamming > 0.05 || rep.Confusion != nil || rep.Threshold != 0.4 || !rep.Multilabel || rep.Accuracy < 0.9 {
-		t.Errorf("multi-label report %+v", rep)
+	assert.Equal(t, 60, rep.Rows, "multi-label report %+v", rep)
+	if assert.NotNil(t, rep.Hamming, "multi-label report %+v", rep) {
+		assert.LessOrEqual(t, *rep.Hamming, 0.05, "multi-label report: Hamming loss")
 	}
-	if r := seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv"); !strings.Contains(r.stdout, "Hamming loss") || strings.Contains(r.stdout, "confusion") {
-		t.Errorf("multi-label text report:\n%s", r.stdout)
-	}
-	if r := seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv", "-plot", filepath.Join(dir, "c.png")); r.code != 2 {
-		t.Errorf("-plot of a multi-label model: status %d", r.code)
-	}
+	assert.Nil(t, rep.Confusion, "multi-label report: confusion")
+	assert.Equal(t, 0.4, rep.Threshold, "multi-label report: threshold")
+	assert.True(t, rep.Multilabel, "multi-label report %+v", rep)
+	assert.GreaterOrEqual(t, rep.Accuracy, 0.9, "multi-label report: accuracy")
+	r = seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv")
+	assert.Contains(t, r.stdout, "Hamming loss", "multi-label text report")
+	assert.NotContains(t, r.stdout, "confusion", "multi-label text report")
+	r = seine(t, "evaluate", "-model", tags, "-data", "testdata/tags.csv", "-plot", filepath.Join(dir, "c.png"))
+	assert.Equal(t, 2, r.code, "-plot of a multi-label model: status")
 	r = seine(t, "predict", "-model", tags, "-data", "testdata/tags.csv")
 	recs, _ := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
-	if len(recs) != 61 || recs[0][0] != "classes" || recs[1][0] != "a|b|c" || recs[3][0] != "c" {
-		t.Errorf("multi-label predict: %d lines, %v", len(recs), recs[:min(4, len(recs))])
+	if assert.Equal(t, 61, len(recs), "multi-label predict: lines, starting %v", recs[:min(4, len(recs))]) {
+		assert.Equal(t, "classes", recs[0][0], "multi-label predict: header")
+		assert.Equal(t, "a|b|c", recs[1][0], "multi-label predict: row 1")
+		assert.Equal(t, "c", recs[3][0], "multi-label predict: row 3")
 	}
 
 	bin := filepath.Join(dir, "binary.seine.json")
-	if r := seine(t, "train", "-spec", "testdata/binary.yaml", "-data", "testdata/binary.csv", "-out", bin, "-iterations", "200", "-quiet"); r.code != 0 {
-		t.Fatalf("train binary: %d %q", r.code, r.stderr)
-	}
+	r = seine(t, "train", "-spec", "testdata/binary.yaml", "-data", "testdata/binary.csv", "-out", bin, "-iterations", "200", "-quiet")
+	require.Equal(t, 0, r.code, "train binary: status; stderr %q", r.stderr)
 	r = seine(t, "predict", "-model", bin, "-data", "testdata/binary.csv", "-probabilities", "-digits", "0")
 	recs, _ = csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
-	if len(recs) != 61 || strings.Join(recs[0], ",") != "class,p_no,p_yes" {
-		t.Fatalf("binary predict: %q", r.stdout)
-	}
+	require.Equal(t, 61, len(recs), "binary predict: lines of %q", r.stdout)
+	require.Equal(t, "class,p_no,p_yes", strings.Join(recs[0], ","), "binary predict: header")
 	for _, rec := range recs[1:] {
 		p0, _ := strconv.ParseFloat(rec[1], 64)
 		p1, _ := strconv.ParseFloat(rec[2], 64)
 		// p_no = 1 − p_yes, rounded once: 1e-15 is a few units of 2⁻⁵².
-		if math.Abs(p0+p1-1) > 1e-15 || (rec[0] == "yes") != (p1 > p0) {
-			t.Errorf("binary row %v", rec)
-		}
+		assert.InDelta(t, 1, p0+p1, 1e-15, "binary row %v: p_no + p_yes", rec)
+		assert.Equal(t, rec[0] == "yes", p1 > p0, "binary row %v: class against the larger probability", rec)
 	}
 }

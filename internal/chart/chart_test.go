@@ -3,7 +3,6 @@ package chart
 import (
 	"bytes"
 	"encoding/xml"
-	"errors"
 	"image/png"
 	"io"
 	"math"
@@ -11,6 +10,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // chartCase is one chart drawn on made-up but plausible numbers.
@@ -90,25 +92,19 @@ func TestChartsPNG(t *testing.T) {
 	for _, c := range append(sampleCharts(), decisionCharts()...) {
 		t.Run(c.name, func(t *testing.T) {
 			var buf bytes.Buffer
-			if err := c.write(&buf, PNG); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, c.write(&buf, PNG))
 			if out != "" {
-				if err := os.WriteFile(filepath.Join(out, c.name+".png"), buf.Bytes(), 0o644); err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, os.WriteFile(filepath.Join(out, c.name+".png"), buf.Bytes(), 0o644))
 			}
 			img, err := png.Decode(&buf)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err, "decoding the PNG")
 			wantW, wantH := 945, 591
 			if c.wide {
 				wantW = 1654
 			}
-			if b := img.Bounds(); b.Dx() != wantW || b.Dy() != wantH {
-				t.Errorf("size %d×%d px, want %d×%d", b.Dx(), b.Dy(), wantW, wantH)
-			}
+			b := img.Bounds()
+			assert.Equal(t, wantW, b.Dx(), "width in px")
+			assert.Equal(t, wantH, b.Dy(), "height in px")
 		})
 	}
 }
@@ -121,13 +117,9 @@ func TestChartsSVG(t *testing.T) {
 	for _, c := range append(sampleCharts(), decisionCharts()...) {
 		t.Run(c.name, func(t *testing.T) {
 			var buf bytes.Buffer
-			if err := c.write(&buf, SVG); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, c.write(&buf, SVG))
 			s := buf.String()
-			if !strings.HasPrefix(s, "<?xml") && !strings.HasPrefix(s, "<svg") {
-				t.Fatalf("starts with %q, want an XML or <svg header", s[:min(len(s), 20)])
-			}
+			require.True(t, strings.HasPrefix(s, "<?xml") || strings.HasPrefix(s, "<svg"), "starts with %q, want an XML or <svg header", s[:min(len(s), 20)])
 			d := xml.NewDecoder(strings.NewReader(s))
 			root := ""
 			for {
@@ -135,20 +127,16 @@ func TestChartsSVG(t *testing.T) {
 				if err == io.EOF {
 					break
 				}
-				if err != nil {
-					t.Fatalf("not well-formed XML: %v", err)
-				}
+				require.NoError(t, err, "not well-formed XML")
 				if se, ok := tok.(xml.StartElement); ok && root == "" {
 					root = se.Name.Local
 				}
 			}
-			if root != "svg" {
-				t.Errorf("root element %q, want svg", root)
-			}
+			assert.Equal(t, "svg", root, "root element")
 			for _, w := range decisionText[c.name] {
-				if !strings.Contains(s, w) {
-					t.Errorf("SVG lacks the text %q", w)
-				}
+				// strings.Contains rather than assert.Contains: a
+				// failure need not print the whole SVG.
+				assert.True(t, strings.Contains(s, w), "SVG lacks the text %q", w)
 			}
 		})
 	}
@@ -170,11 +158,9 @@ func TestFormatOf(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.path, func(t *testing.T) {
 			got, err := FormatOf(tt.path)
-			if !errors.Is(err, tt.err) {
-				t.Fatalf("err = %v, want %v", err, tt.err)
-			}
-			if err == nil && got != tt.want {
-				t.Errorf("FormatOf(%q) = %v, want %v", tt.path, got, tt.want)
+			require.ErrorIs(t, err, tt.err)
+			if err == nil {
+				assert.Equal(t, tt.want, got, "FormatOf(%q)", tt.path)
 			}
 		})
 	}
@@ -236,12 +222,8 @@ func TestBadInput(t *testing.T) {
 		t.Run(tt.name, func(t *testing.T) {
 			var buf bytes.Buffer
 			err := tt.write(&buf, tt.f)
-			if !errors.Is(err, tt.want) {
-				t.Fatalf("err = %v, want %v", err, tt.want)
-			}
-			if buf.Len() != 0 {
-				t.Errorf("wrote %d bytes on error", buf.Len())
-			}
+			require.ErrorIs(t, err, tt.want)
+			assert.Equal(t, 0, buf.Len(), "bytes written on error")
 		})
 	}
 }

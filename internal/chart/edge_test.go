@@ -10,6 +10,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // TestEdgeCases draws charts on degenerate but valid input; each must
@@ -71,18 +74,13 @@ func TestEdgeCases(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var buf bytes.Buffer
-			if err := c.write(&buf, PNG); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, c.write(&buf, PNG))
 			if out := os.Getenv("CHART_OUT"); out != "" { // for a look
 				name := strings.ReplaceAll(c.name, " ", "-") + ".png"
-				if err := os.WriteFile(filepath.Join(out, name), buf.Bytes(), 0o644); err != nil {
-					t.Fatal(err)
-				}
+				require.NoError(t, os.WriteFile(filepath.Join(out, name), buf.Bytes(), 0o644))
 			}
-			if _, err := png.Decode(&buf); err != nil {
-				t.Fatal(err)
-			}
+			_, err := png.Decode(&buf)
+			assert.NoError(t, err, "decoding the PNG")
 		})
 	}
 }
@@ -98,21 +96,17 @@ func TestLogTicks(t *testing.T) {
 		t.Run(fmt.Sprint(tt.lo, "-", tt.hi), func(t *testing.T) {
 			var labels []string
 			for _, tk := range (logTicks{}).Ticks(tt.lo, tt.hi) {
-				if tk.Value < tt.lo*(1-1e-9) || tk.Value > tt.hi*(1+1e-9) {
-					t.Errorf("tick %g outside [%g, %g]", tk.Value, tt.lo, tt.hi)
-				}
+				assert.GreaterOrEqual(t, tk.Value, tt.lo*(1-1e-9), "tick %g outside [%g, %g]", tk.Value, tt.lo, tt.hi)
+				assert.LessOrEqual(t, tk.Value, tt.hi*(1+1e-9), "tick %g outside [%g, %g]", tk.Value, tt.lo, tt.hi)
 				if tk.Label != "" {
 					labels = append(labels, tk.Label)
 				}
 			}
 			// Span < 1 decade labels up to 9 per decade, so allow 9 there.
-			if len(labels) < 2 || len(labels) > 9 {
-				t.Errorf("labels %v: want 2 to 9", labels)
-			}
+			assert.GreaterOrEqual(t, len(labels), 2, "labels %v: want 2 to 9", labels)
+			assert.LessOrEqual(t, len(labels), 9, "labels %v: want 2 to 9", labels)
 			for _, l := range labels {
-				if len(l) > 6 {
-					t.Errorf("label %q longer than 6 characters", l)
-				}
+				assert.LessOrEqual(t, len(l), 6, "label %q longer than 6 characters", l)
 			}
 		})
 	}

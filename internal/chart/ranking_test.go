@@ -2,10 +2,12 @@ package chart
 
 import (
 	"bytes"
-	"errors"
 	"io"
 	"math"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // rocSample is a made-up but plausible ROC curve, a binormal model
@@ -98,12 +100,8 @@ func TestDecisionChartsBadInput(t *testing.T) {
 			}
 			var buf bytes.Buffer
 			err := tt.write(&buf, f)
-			if !errors.Is(err, tt.want) {
-				t.Fatalf("err = %v, want %v", err, tt.want)
-			}
-			if buf.Len() != 0 {
-				t.Errorf("wrote %d bytes on error", buf.Len())
-			}
+			require.ErrorIs(t, err, tt.want)
+			assert.Equal(t, 0, buf.Len(), "bytes written on error")
 		})
 	}
 }
