@@ -132,13 +132,13 @@ func PermutationImportance(ctx context.Context, m *nn.Model, set *data.Set, cfg 
 		return nil, err
 	}
 	thresholds := cfg.Thresholds
-	if thresholds == nil && m.Spec.Output.Activation == spec.Sigmoid {
-		thresholds = m.Decision.Thresholds
+	if thresholds == nil && m.Spec().Output.Activation == spec.Sigmoid {
+		thresholds = m.Decision().Thresholds
 	}
 	opt := score.Options{Multilabel: m.Multilabel(), Thresholds: thresholds}
 	measure := func(p *mat.Dense, x *mat.Dense) (ce, acc float64, err error) {
 		m.ProbabilitiesBatch(p, x)
-		r, err := score.Evaluate(p, set.Y, m.Classes, opt)
+		r, err := score.Evaluate(p, set.Y, m.Classes(), opt)
 		if err != nil {
 			return 0, 0, err
 		}

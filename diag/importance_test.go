@@ -152,15 +152,15 @@ func TestImportanceBase(t *testing.T) {
 // (an identity, not a tolerance), while the others are not.
 func TestImportanceUnusedInput(t *testing.T) {
 	m, set := trainNoisyIris(t)
-	params := append([]float64(nil), m.Params...)
+	params := append([]float64(nil), m.Params()...)
 	w, _ := m.Net().Block(0)
 	in := m.Net().Inputs()
-	units := m.Spec.Hidden[0].Units
+	units := m.Spec().Hidden[0].Units
 	const unused = 2 // petal length: informative until cut off
 	for o := range units {
 		params[w+o*in+unused] = 0
 	}
-	cut, err := nn.NewModel(m.Spec, params, m.Encoder(), m.Classes)
+	cut, err := nn.NewModel(m.Spec(), params, m.Encoder(), m.Classes())
 	require.NoError(t, err)
 	im, err := PermutationImportance(context.Background(), cut, set, ImportanceConfig{Seed: 1})
 	require.NoError(t, err)

@@ -415,7 +415,7 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 		if err != nil {
 			return fitted{}, err
 		}
-		*part.cost, *part.acc = scr.Measure(m.Params)
+		*part.cost, *part.acc = scr.Measure(m.Params())
 		scr.Close()
 	}
 	return out, nil

@@ -36,7 +36,7 @@ func catalogueModels(t *testing.T) map[string][]byte {
 	require.NoError(t, err)
 	m, err := NewModel(s, p, enc, nil)
 	require.NoError(t, err)
-	m.Label = "species"
+	m.label = "species"
 	input := func(d map[string]any, i int) map[string]any {
 		return d["encoder"].(map[string]any)["inputs"].([]any)[i].(map[string]any)
 	}

@@ -71,11 +71,11 @@ func (d Decision) check(s *spec.Network) error {
 // are divided by T, so that every prediction path computes
 // g((W a + b)/T) = g(W/T a + b/T).
 func (m *Model) tempered() []float64 {
-	t := m.Decision.Temperature
+	t := m.decision.Temperature
 	if t == 0 || t == 1 {
-		return m.Params
+		return m.params
 	}
-	p := slices.Clone(m.Params)
+	p := slices.Clone(m.params)
 	w, b := m.net.Block(m.net.NumLayers() - 1)
 	for i := w; i < b+m.net.Outputs(); i++ {
 		p[i] /= t
@@ -87,8 +87,8 @@ func (m *Model) tempered() []float64 {
 // probable class (the first on a tie), or for a binary sigmoid model with a
 // threshold t, class 1 when p[1] ≥ t.
 func (m *Model) decide(p []float64) int {
-	if len(m.Decision.Thresholds) == 1 && len(p) == 2 && !m.Spec.Output.Multilabel {
-		if p[1] >= m.Decision.Thresholds[0] {
+	if len(m.decision.Thresholds) == 1 && len(p) == 2 && !m.spec.Output.Multilabel {
+		if p[1] >= m.decision.Thresholds[0] {
 			return 1
 		}
 		return 0
@@ -99,8 +99,8 @@ func (m *Model) decide(p []float64) int {
 // threshold returns the decision threshold of class k of a multi-label
 // model: the model's, or 0.5.
 func (m *Model) threshold(k int) float64 {
-	if m.Decision.Thresholds != nil && m.Spec.Output.Multilabel {
-		return m.Decision.Thresholds[k]
+	if m.decision.Thresholds != nil && m.spec.Output.Multilabel {
+		return m.decision.Thresholds[k]
 	}
 	return 0.5
 }
@@ -108,10 +108,10 @@ func (m *Model) threshold(k int) float64 {
 // SetDecision checks d against the model and makes every prediction use
 // it. Call it before the model is shared between goroutines.
 func (m *Model) SetDecision(d Decision) error {
-	if err := d.check(m.Spec); err != nil {
+	if err := d.check(m.spec); err != nil {
 		return err
 	}
-	m.Decision = d
+	m.decision = d
 	m.fwd = m.tempered()
 	return nil
 }

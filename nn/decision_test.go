@@ -16,7 +16,7 @@ import (
 // withDecision returns a copy of m (same spec, params and encoder) with d.
 func withDecision(t *testing.T, m *Model, d Decision) (*Model, error) {
 	t.Helper()
-	c := &Model{Spec: m.Spec, Params: m.Params, Classes: m.Classes, enc: m.enc, Decision: d}
+	c := &Model{spec: m.spec, params: m.params, classes: m.classes, enc: m.enc, decision: d}
 	return c, c.init()
 }
 
@@ -43,7 +43,7 @@ func TestDecisionTemperature(t *testing.T) {
 				require.Equal(t, math.Float64bits(a[k]), math.Float64bits(b[k]), "T = 1 changes nothing")
 			}
 			u := m.Encoder().Expand(make([]float64, m.Net().Inputs()), x)
-			z := m.Net().Logits(ws, m.Params, denseRow(u)).RawRowView(0)
+			z := m.Net().Logits(ws, m.params, denseRow(u)).RawRowView(0)
 			want := make([]float64, len(z))
 			for k, v := range z {
 				want[k] = v / 2.5
@@ -117,7 +117,7 @@ func TestDecisionRoundTripAndChecks(t *testing.T) {
 	assert.Contains(t, buf.String(), `"decision"`)
 	got, err := ReadModel(bytes.NewReader(buf.Bytes()))
 	require.NoError(t, err)
-	assert.Equal(t, d.Decision, got.Decision)
+	assert.Equal(t, d.decision, got.decision)
 	x := rows()[1]
 	assert.Equal(t, d.Probabilities(nil, x), got.Probabilities(nil, x))
 	// The decision is inside the checksum.

@@ -37,7 +37,7 @@ func ExampleModel_PredictRecord() {
 		return
 	}
 	k, err := m.PredictRecord(map[string]any{"amount": 180.0, "channel": "web"})
-	fmt.Println(m.Classes[k], err)
+	fmt.Println(m.Classes()[k], err)
 	_, err = m.PredictRecord(map[string]any{"amount": nil, "channel": "web"})
 	var fe *encode.FieldError
 	fmt.Println(errors.As(err, &fe), fe.Field, errors.Is(err, encode.ErrMissingValue))

@@ -33,7 +33,7 @@ func (c *classifier) reload() error {
 // models; Model's methods are safe for concurrent use.
 func (c *classifier) classify(x []float64) string {
 	m := c.model.Load()
-	return m.Classes[m.Predict(x)]
+	return m.Classes()[m.Predict(x)]
 }
 
 // Hot-swap a model in a running service: load the model file that a nightly

@@ -39,7 +39,7 @@ func fuzzSeeds(t testing.TB) map[string][]byte {
 		return b.Bytes()
 	}
 	soft := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
-	soft.Summary = Summary{Method: "lbfgs", Iterations: 12, Cost: 0.5, HoldoutCost: math.NaN(), Library: Version}
+	soft.summary = Summary{Method: "lbfgs", Iterations: 12, Cost: 0.5, HoldoutCost: math.NaN(), Library: Version}
 	bin := testModel(t, spec.Sigmoid, []string{"no", "yes"}, false)
 	multi := testModel(t, spec.Sigmoid, []string{"p", "q", "r"}, true)
 	plain, err := NewModel(testSpec(2, nil, spec.Identity, outSoftmax), []float64{1, -1, 0.5, 2, 0, -2, 0.25, 0.5, -0.75}, nil, nil)
@@ -159,8 +159,8 @@ func FuzzModel(f *testing.F) {
 		if err != nil {
 			t.Fatalf("reading back an accepted model: %v", err)
 		}
-		for i := range m.Params {
-			if math.Float64bits(m.Params[i]) != math.Float64bits(back.Params[i]) {
+		for i := range m.params {
+			if math.Float64bits(m.params[i]) != math.Float64bits(back.params[i]) {
 				t.Fatalf("param %d changed on a round trip", i)
 			}
 		}

@@ -21,10 +21,13 @@ import (
 // A Model is safe for concurrent use by many goroutines once built: its
 // prediction methods only read the params and take their scratch space from
 // an internal pool, so a single-row prediction allocates nothing after
-// warm-up. Do not modify the exported fields after the first prediction.
+// warm-up. Its parts are read through methods and set only through
+// functions that check them (NewModel, SetDecision, SetLabel, SetSummary,
+// Load), so a Model is usable or it is an error: a zero Model's methods
+// report that it was not built.
 //
 // The float64 prediction methods take coded rows: one value per raw input,
-// in the order of Features — a number for a number input, the index in its
+// in the order of Features() — a number for a number input, the index in its
 // levels for a category input, NaN for a missing value (see
 // encode.Encoder). For a model whose inputs are all numbers that is simply
 // the raw feature row. The model expands and scales it itself before the
@@ -32,15 +35,15 @@ import (
 // PredictRecord or ProbabilitiesRecord, which check every value and return
 // errors instead.
 type Model struct {
-	Spec     *spec.Network // the resolved spec: category inputs hold their levels
-	Params   []float64
-	Classes  []string
-	Features []string // the raw inputs' names, from the encoder
-	Label    string   // the name of the label column in the training file; "" if unknown
-	Summary  Summary
-	// Decision holds the temperature and operating thresholds chosen on
+	spec     *spec.Network // the resolved spec: category inputs hold their levels
+	params   []float64
+	classes  []string
+	features []string // the raw inputs' names, from the encoder
+	label    string   // the name of the label column in the training file; "" if unknown
+	summary  Summary
+	// decision holds the temperature and operating thresholds chosen on
 	// holdout rows; the zero value changes nothing.
-	Decision Decision
+	decision Decision
 
 	enc       *encode.Encoder
 	fwd       []float64 // the params predictions use: Params, or a tempered copy
@@ -110,7 +113,7 @@ var ErrModel = errors.New("nn: invalid model")
 // are all plain numbers, unscaled, named by s.Features (or "x1" … when s
 // gives a count). classes may be nil, meaning the spec's.
 func NewModel(s *spec.Network, params []float64, enc *encode.Encoder, classes []string) (*Model, error) {
-	m := &Model{Spec: s, Params: params, Classes: classes, enc: enc}
+	m := &Model{spec: s, params: params, classes: classes, enc: enc}
 	if err := m.init(); err != nil {
 		return nil, err
 	}
@@ -120,51 +123,51 @@ func NewModel(s *spec.Network, params []float64, enc *encode.Encoder, classes []
 // init compiles the net and checks every part; it is the one place where a
 // model, built in Go or read from a file, becomes usable.
 func (m *Model) init() error {
-	if m.Spec == nil {
+	if m.spec == nil {
 		return fmt.Errorf("%w: no spec", ErrModel)
 	}
-	net, err := Compile(m.Spec)
+	net, err := Compile(m.spec)
 	if err != nil {
 		return fmt.Errorf("%w: %w", ErrModel, err)
 	}
-	if len(m.Params) != net.NumParams() {
-		return fmt.Errorf("%w: %d params, the spec needs %d", ErrModel, len(m.Params), net.NumParams())
+	if len(m.params) != net.NumParams() {
+		return fmt.Errorf("%w: %d params, the spec needs %d", ErrModel, len(m.params), net.NumParams())
 	}
-	for i, v := range m.Params {
+	for i, v := range m.params {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return fmt.Errorf("%w: param %d is %v", ErrModel, i, v)
 		}
 	}
 	if m.enc == nil {
-		if m.Spec.Features != nil && len(m.Spec.Features) != m.Spec.Inputs {
-			return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.Spec.Features), m.Spec.Inputs)
+		if m.spec.Features != nil && len(m.spec.Features) != m.spec.Inputs {
+			return fmt.Errorf("%w: %d feature names for %d inputs", ErrModel, len(m.spec.Features), m.spec.Inputs)
 		}
-		if m.enc, err = encode.Numbers(m.Spec.Features, make([]float64, m.Spec.Inputs), ones(m.Spec.Inputs)); err != nil {
+		if m.enc, err = encode.Numbers(m.spec.Features, make([]float64, m.spec.Inputs), ones(m.spec.Inputs)); err != nil {
 			return fmt.Errorf("%w: %w", ErrModel, err)
 		}
 	}
-	if err := m.enc.CheckSpec(m.Spec); err != nil {
+	if err := m.enc.CheckSpec(m.spec); err != nil {
 		return fmt.Errorf("%w: the encoder disagrees with the spec: %w", ErrModel, err)
 	}
 	if m.enc.Width() != net.Inputs() {
 		return fmt.Errorf("%w: the encoder makes %d input units, the net takes %d", ErrModel, m.enc.Width(), net.Inputs())
 	}
-	m.Features = m.enc.Names()
-	if m.Classes == nil {
-		m.Classes = m.Spec.Output.Classes
+	m.features = m.enc.Names()
+	if m.classes == nil {
+		m.classes = m.spec.Output.Classes
 	}
-	if len(m.Classes) != len(m.Spec.Output.Classes) {
-		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.Classes), len(m.Spec.Output.Classes))
+	if len(m.classes) != len(m.spec.Output.Classes) {
+		return fmt.Errorf("%w: %d class names for %d classes", ErrModel, len(m.classes), len(m.spec.Output.Classes))
 	}
-	for k, c := range m.Classes {
-		if c != m.Spec.Output.Classes[k] {
-			return fmt.Errorf("%w: classes: class %d is %q, the spec's output.classes say %q", ErrModel, k+1, c, m.Spec.Output.Classes[k])
+	for k, c := range m.classes {
+		if c != m.spec.Output.Classes[k] {
+			return fmt.Errorf("%w: classes: class %d is %q, the spec's output.classes say %q", ErrModel, k+1, c, m.spec.Output.Classes[k])
 		}
 	}
-	if m.Label != "" && slices.Contains(m.Features, m.Label) {
-		return fmt.Errorf("%w: label: the label column %q is also an input", ErrModel, m.Label)
+	if m.label != "" && slices.Contains(m.features, m.label) {
+		return fmt.Errorf("%w: label: the label column %q is also an input", ErrModel, m.label)
 	}
-	if err := m.Decision.check(m.Spec); err != nil {
+	if err := m.decision.check(m.spec); err != nil {
 		return err
 	}
 	m.net = net
@@ -174,10 +177,10 @@ func (m *Model) init() error {
 	}
 	n := m.enc.NumInputs()
 	m.batchPool.New = func() any {
-		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), coded: make([]float64, n), probs: make([]float64, len(m.Classes))}
+		return &batchScratch{ws: net.NewWorkspace(batchBlock), in: mat.NewDense(batchBlock, net.Inputs(), nil), coded: make([]float64, n), probs: make([]float64, len(m.classes))}
 	}
 	m.pool.New = func() any {
-		return &rowScratch{ws: net.NewWorkspace(1), coded: make([]float64, n), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.Classes))}
+		return &rowScratch{ws: net.NewWorkspace(1), coded: make([]float64, n), in: make([]float64, net.Inputs()), out: make([]float64, net.Outputs()), probs: make([]float64, len(m.classes))}
 	}
 	return nil
 }
@@ -233,6 +236,57 @@ func (m *Model) built() error {
 	return nil
 }
 
+// Spec returns a copy of the model's resolved spec: the spec trained, with
+// the levels that its category inputs learned written in, so that
+// nn.Compile(m.Spec()) gives the model's net.
+// It is nil for a model that was not built.
+func (m *Model) Spec() *spec.Network {
+	if m.spec == nil {
+		return nil
+	}
+	return m.spec.Clone()
+}
+
+// Params returns a copy of the model's params, in the layout of Net.
+func (m *Model) Params() []float64 { return slices.Clone(m.params) }
+
+// Classes returns the class names in the order of the output units and
+// of every probability row; the caller must not modify it.
+func (m *Model) Classes() []string { return m.classes }
+
+// Features returns the raw inputs' names, in the order of coded rows; the
+// caller must not modify it.
+func (m *Model) Features() []string { return m.features }
+
+// Label returns the name of the label column in the training file, or ""
+// when it is not known (models of format version 1 and models built in Go).
+func (m *Model) Label() string { return m.label }
+
+// Summary returns how the model was trained.
+func (m *Model) Summary() Summary { return m.summary }
+
+// Decision returns the temperature and operating thresholds the model
+// predicts with.
+func (m *Model) Decision() Decision { return m.decision }
+
+// SetLabel records the name of the label column of the training file,
+// which predict and evaluate look for; it refuses a name that is one of
+// the model's inputs.
+func (m *Model) SetLabel(name string) error {
+	if err := m.built(); err != nil {
+		return err
+	}
+	if slices.Contains(m.features, name) {
+		return fmt.Errorf("%w: label: the label column %q is also an input", ErrModel, name)
+	}
+	m.label = name
+	return nil
+}
+
+// SetSummary records how the model was trained. The summary describes the
+// model and changes no prediction.
+func (m *Model) SetSummary(s Summary) { m.summary = s }
+
 // Encoder returns the model's encoder.
 func (m *Model) Encoder() *encode.Encoder { return m.enc }
 
@@ -240,10 +294,10 @@ func (m *Model) Encoder() *encode.Encoder { return m.enc }
 func (m *Model) Inputs() int { return m.enc.NumInputs() }
 
 // NumClasses returns the number of classes.
-func (m *Model) NumClasses() int { return len(m.Classes) }
+func (m *Model) NumClasses() int { return len(m.classes) }
 
 // Multilabel reports whether a row may carry several classes.
-func (m *Model) Multilabel() bool { return m.Spec.Output.Multilabel }
+func (m *Model) Multilabel() bool { return m.spec.Output.Multilabel }
 
 // classProbs runs one coded row through the net and returns pooled scratch
 // whose probs hold the class probabilities (see toClassProbs); the caller
@@ -285,7 +339,7 @@ func toClassProbs(p, o []float64) {
 // the independent probability of its class. It panics if len(x) is not
 // Inputs(): check rows from outside the program first.
 func (m *Model) Probabilities(dst, x []float64) []float64 {
-	k := len(m.Classes)
+	k := len(m.classes)
 	if cap(dst) < k {
 		dst = make([]float64, k)
 	}
@@ -344,7 +398,7 @@ func (m *Model) Labels(dst []int, x []float64, threshold float64) []int {
 // workspace, so a call allocates almost nothing after warm-up.
 func (m *Model) ProbabilitiesBatch(dst *mat.Dense, x mat.Matrix) {
 	r, _ := x.Dims()
-	k := len(m.Classes)
+	k := len(m.classes)
 	if dst.IsEmpty() {
 		dst.ReuseAs(r, k)
 	} else if dr, dc := dst.Dims(); dr != r || dc != k {

@@ -58,21 +58,21 @@ func TestModelRoundTripBitIdentical(t *testing.T) {
 		testModel(t, spec.Sigmoid, []string{"no", "yes"}, false),
 		testModel(t, spec.Sigmoid, []string{"p", "q", "r"}, true),
 	} {
-		m.Summary = Summary{Method: "lbfgs", Iterations: 3, Cost: 0.25, HoldoutCost: math.NaN(), Library: Version}
+		m.summary = Summary{Method: "lbfgs", Iterations: 3, Cost: 0.25, HoldoutCost: math.NaN(), Library: Version}
 		var buf bytes.Buffer
 		_, err := m.WriteTo(&buf)
 		require.NoError(t, err)
 		got, err := ReadModel(&buf)
 		require.NoError(t, err)
-		require.Equal(t, len(m.Params), len(got.Params))
-		for i := range m.Params {
-			require.Equal(t, math.Float64bits(m.Params[i]), math.Float64bits(got.Params[i]), "param %d", i)
+		require.Equal(t, len(m.params), len(got.params))
+		for i := range m.params {
+			require.Equal(t, math.Float64bits(m.params[i]), math.Float64bits(got.params[i]), "param %d", i)
 		}
 		assert.True(t, m.Encoder().Equal(got.Encoder()))
-		assert.Equal(t, m.Classes, got.Classes)
-		assert.Equal(t, m.Features, got.Features)
-		assert.True(t, math.IsNaN(got.Summary.HoldoutCost))
-		assert.Equal(t, 0.25, got.Summary.Cost)
+		assert.Equal(t, m.classes, got.classes)
+		assert.Equal(t, m.features, got.features)
+		assert.True(t, math.IsNaN(got.summary.HoldoutCost))
+		assert.Equal(t, 0.25, got.summary.Cost)
 		for _, x := range rows() {
 			a, b := m.Probabilities(nil, x), got.Probabilities(nil, x)
 			for k := range a {
@@ -239,8 +239,8 @@ func TestReadModelRejects(t *testing.T) {
 		{"encoder unknown rule word", edit(func(d map[string]any) { input(d, 0)["missing"] = "guess" }), ErrModel, "guess"},
 		{"classes disagree with the spec", edit(func(d map[string]any) { d["classes"] = []string{"x", "z", "y"} }), ErrModel, "output.classes"},
 		{"params that overflow", edit(func(d map[string]any) {
-			raw := make([]byte, 8*len(m.Params))
-			for i := range m.Params {
+			raw := make([]byte, 8*len(m.params))
+			for i := range m.params {
 				binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(1e308)) // tanh saturates, but the softmax layer's z overflows
 			}
 			params(d)["data"] = base64.StdEncoding.EncodeToString(raw)
@@ -271,12 +271,12 @@ func TestSaveAndLoad(t *testing.T) {
 	require.NoError(t, m.Save(path))
 	got, err := Load(path)
 	require.NoError(t, err)
-	assert.Equal(t, m.Params, got.Params)
+	assert.Equal(t, m.params, got.params)
 	before, err := os.ReadFile(path)
 	require.NoError(t, err)
 
 	// A failed save leaves the old file intact and no temporary file behind.
-	bad := &Model{Spec: m.Spec, Params: []float64{1}}
+	bad := &Model{spec: m.spec, params: []float64{1}}
 	require.Error(t, bad.Save(path))
 	after, err := os.ReadFile(path)
 	require.NoError(t, err)
@@ -292,7 +292,7 @@ func TestSaveAndLoad(t *testing.T) {
 	fsys := fstest.MapFS{"models/m.seine.json": {Data: before}}
 	fm, err := LoadFS(fsys, "models/m.seine.json")
 	require.NoError(t, err)
-	assert.Equal(t, m.Params, fm.Params)
+	assert.Equal(t, m.params, fm.params)
 	_, err = LoadFS(fsys, "nope.json")
 	assert.Error(t, err)
 }
@@ -466,4 +466,38 @@ func TestZeroModel(t *testing.T) {
 	_, err = m.ProbabilitiesSet(nil)
 	assert.ErrorIs(t, err, ErrModel)
 	assert.PanicsWithValue(t, "nn: invalid model: the model was not built: make models with nn.NewModel, nn.Load or train.Train", func() { m.Predict([]float64{1}) })
+	assert.ErrorIs(t, m.SetLabel("y"), ErrModel)
+	assert.Nil(t, m.Spec())
+	assert.Nil(t, m.Params())
+	assert.Empty(t, m.Classes())
+}
+
+// The accessors hand out copies of what a caller could otherwise change
+// under the model (its spec and params), and SetLabel keeps the loader's
+// rule that the label column is not an input (issue 14: a model cannot be
+// built broken).
+func TestModelAccessors(t *testing.T) {
+	s := &spec.Network{Version: 1, Inputs: 2, Hidden: []spec.Layer{{Units: 2, Activation: spec.Tanh}},
+		Output: spec.Output{Classes: []string{"a", "b"}, Activation: spec.Softmax}, Init: spec.Init{Scheme: spec.GlorotUniform, Seed: 1}}
+	net, err := Compile(s)
+	require.NoError(t, err)
+	m, err := NewModel(s, net.NewParams(), nil, nil)
+	require.NoError(t, err)
+	x := []float64{0.3, -1.2}
+	before := m.Probabilities(nil, x)
+	p := m.Params()
+	for i := range p {
+		p[i] = 2 // were the slice the model's, the probabilities would change
+	}
+	m.Spec().Output.Classes[0] = "changed"
+	assert.Equal(t, before, m.Probabilities(nil, x))
+	assert.Equal(t, []string{"a", "b"}, m.Classes())
+	assert.Equal(t, []string{"x1", "x2"}, m.Features())
+
+	require.ErrorIs(t, m.SetLabel("x2"), ErrModel)
+	assert.Equal(t, "", m.Label())
+	require.NoError(t, m.SetLabel("kind"))
+	assert.Equal(t, "kind", m.Label())
+	m.SetSummary(Summary{Iterations: 7})
+	assert.Equal(t, 7, m.Summary().Iterations)
 }

@@ -354,25 +354,25 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 		}
 	}
 	var y bytes.Buffer
-	if err := m.Spec.WriteYAML(&y); err != nil {
+	if err := m.spec.WriteYAML(&y); err != nil {
 		return 0, fmt.Errorf("nn: writing model spec: %w", err)
 	}
-	raw := make([]byte, 8*len(m.Params))
-	for i, v := range m.Params {
+	raw := make([]byte, 8*len(m.params))
+	for i, v := range m.params {
 		binary.LittleEndian.PutUint64(raw[8*i:], math.Float64bits(v))
 	}
-	label := m.Label
+	label := m.label
 	f := fileModel{
 		Format: FormatName, Version: FormatVersion, Spec: y.String(),
-		Classes: m.Classes, Label: &label, Encoder: toFileEncoder(m.enc),
-		Params: fileParams{Count: len(m.Params), Encoding: paramEncoding, Data: paramData{raw: raw}},
+		Classes: m.classes, Label: &label, Encoder: toFileEncoder(m.enc),
+		Params: fileParams{Count: len(m.params), Encoding: paramEncoding, Data: paramData{raw: raw}},
 	}
-	if !m.Decision.IsZero() {
-		d := m.Decision
+	if !m.decision.IsZero() {
+		d := m.decision
 		f.Decision = &d
 	}
 	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, f.Decision, raw)
-	s := m.Summary
+	s := m.summary
 	f.Summary = fileSummary{
 		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status.String(),
 		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
@@ -479,16 +479,16 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 			return nil, err
 		}
 	}
-	m := &Model{Spec: s, Params: params, Classes: f.Classes, Label: label, enc: enc}
+	m := &Model{spec: s, params: params, classes: f.Classes, label: label, enc: enc}
 	if f.Decision != nil {
-		m.Decision = *f.Decision
+		m.decision = *f.Decision
 	}
 	fs := f.Summary
 	status, ok := optim.ParseStatus(fs.Status)
 	if !ok {
 		return nil, fmt.Errorf("%w: summary.status is %q, not a status of a run", ErrFormat, fs.Status)
 	}
-	m.Summary = Summary{
+	m.summary = Summary{
 		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: status,
 		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
 		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),

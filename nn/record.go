@@ -51,7 +51,7 @@ func (b *Binding) Probabilities(dst []float64, row []encode.Value) ([]float64, e
 	if err != nil {
 		return nil, err
 	}
-	k := len(b.m.Classes)
+	k := len(b.m.classes)
 	if cap(dst) < k {
 		dst = make([]float64, k)
 	}
@@ -99,7 +99,7 @@ func (m *Model) ProbabilitiesRecord(dst []float64, rec map[string]any) ([]float6
 	if err != nil {
 		return nil, err
 	}
-	k := len(m.Classes)
+	k := len(m.classes)
 	if cap(dst) < k {
 		dst = make([]float64, k)
 	}
@@ -134,7 +134,7 @@ func (m *Model) ProbabilitiesSet(set *data.Set) (*mat.Dense, error) {
 		return nil, err
 	}
 	r, _ := u.Dims()
-	out := mat.NewDense(r, len(m.Classes), nil)
+	out := mat.NewDense(r, len(m.classes), nil)
 	sc := m.batchPool.Get().(*batchScratch)
 	defer m.batchPool.Put(sc)
 	for start := 0; start < r; start += batchBlock {

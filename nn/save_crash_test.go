@@ -33,7 +33,7 @@ func crashModel(t testing.TB, v int) *Model {
 	require.NoError(t, err)
 	m, err := NewModel(s, net.NewParams(), nil, nil)
 	require.NoError(t, err)
-	m.Summary.Iterations = v
+	m.summary.Iterations = v
 	return m
 }
 
@@ -88,11 +88,11 @@ func TestSaveKilled(t *testing.T) {
 
 		m, err := Load(path)
 		require.NoError(t, err, "kill %d: the model file no longer loads", k)
-		v := m.Summary.Iterations
+		v := m.summary.Iterations
 		require.True(t, v == 0 || v == 1, "kill %d: unknown model %d", k, v)
 		loaded[v]++
-		for i := range m.Params {
-			if math.Float64bits(m.Params[i]) != math.Float64bits(models[v].Params[i]) {
+		for i := range m.params {
+			if math.Float64bits(m.params[i]) != math.Float64bits(models[v].params[i]) {
 				t.Fatalf("kill %d: param %d differs from model %d's", k, i, v)
 			}
 		}
@@ -107,7 +107,7 @@ func TestSaveKilled(t *testing.T) {
 	require.NoError(t, models[1].Save(path))
 	m, err := Load(path)
 	require.NoError(t, err)
-	require.Equal(t, 1, m.Summary.Iterations)
+	require.Equal(t, 1, m.summary.Iterations)
 	t.Logf("%d kills; %d left a temporary file (killed mid-save); the path held model 0 %d times, model 1 %d times", kills, temps, loaded[0], loaded[1])
 	// A kill outside a save leaves no temporary file; if none did, the test
 	// never interrupted a save and proved nothing.

@@ -32,12 +32,12 @@ func TestHotSwap(t *testing.T) {
 	base := testModel(t, spec.Softmax, []string{"x", "y", "z"}, false)
 	files := make([][]byte, swaps+1)
 	for v := range files {
-		p := mustCompile(t, base.Spec).NewParams()
-		mustCompile(t, base.Spec).Init(p, uint64(100+v))
+		p := mustCompile(t, base.spec).NewParams()
+		mustCompile(t, base.spec).Init(p, uint64(100+v))
 		for i := range p {
 			p[i] *= 3
 		}
-		m, err := NewModel(base.Spec, p, base.Encoder(), nil)
+		m, err := NewModel(base.spec, p, base.Encoder(), nil)
 		require.NoError(t, err)
 		var b bytes.Buffer
 		_, err = m.WriteTo(&b)

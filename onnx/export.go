@@ -101,7 +101,7 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 	if m == nil || m.Net() == nil || m.Encoder() == nil {
 		return nil, unsupported("no model (build it with nn.NewModel, train.Train or nn.Load)")
 	}
-	s, net, enc := m.Spec, m.Net(), m.Encoder()
+	s, net, enc := m.Spec(), m.Net(), m.Encoder()
 	name := s.Name
 	if name == "" {
 		name = "seine"
@@ -144,7 +144,7 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 		return nil, err
 	}
 
-	classes, err := json.Marshal(m.Classes)
+	classes, err := json.Marshal(m.Classes())
 	if err != nil {
 		return nil, fmt.Errorf("onnx: class names: %w", err)
 	}
@@ -155,7 +155,7 @@ func build(m *nn.Model, opset int, full bool) (*pb.ModelProto, error) {
 		{Key: proto.String(MetaNumberInputs), Value: proto.String(jsonList(numbers))},
 		{Key: proto.String(MetaCategoryInputs), Value: proto.String(jsonList(categories))},
 	}
-	if d := m.Decision; !d.IsZero() {
+	if d := m.Decision(); !d.IsZero() {
 		if t := d.Temperature; t != 0 && t != 1 {
 			meta = append(meta, &pb.StringStringEntryProto{Key: proto.String(MetaTemperature), Value: proto.String(strconv.FormatFloat(t, 'g', -1, 64))})
 		}
@@ -339,13 +339,13 @@ func categoryGraph(b *graph, in encode.Input, tokens []string) (string, error) {
 func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 	sizes := net.Sizes()
 	L := net.NumLayers()
-	T := m.Decision.Temperature
+	T := m.Decision().Temperature
 	a := units
 	for l := 0; l < L; l++ {
 		w, bo := net.Block(l)
 		nin, nout := sizes[l], sizes[l+1]
 		layer := strconv.Itoa(l + 1)
-		wv, bv := m.Params[w:w+nout*nin], m.Params[bo:bo+nout]
+		wv, bv := m.Params()[w:w+nout*nin], m.Params()[bo:bo+nout]
 		if l == L-1 && T != 0 && T != 1 {
 			// Temperature scaling folded into the output layer as nn
 			// does it: g((W a + b)/T) computed as g((W/T) a + b/T), each
@@ -366,13 +366,13 @@ func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 			break
 		}
 		var err error
-		if a, err = hidden(b, m.Spec.Hidden[l].Activation, z, "a"+layer); err != nil {
+		if a, err = hidden(b, m.Spec().Hidden[l].Activation, z, "a"+layer); err != nil {
 			return unsupported("hidden layer %d: %v", l+1, err)
 		}
 	}
-	out := m.Spec.Output
-	K := len(m.Classes)
-	th := m.Decision.Thresholds
+	out := m.Spec().Output
+	K := len(m.Classes())
+	th := m.Decision().Thresholds
 	binary := out.Activation == spec.Sigmoid && out.Units() == 1 && K == 2
 	switch {
 	case out.Activation == spec.Softmax:

@@ -115,7 +115,7 @@ func TestWriteContract(t *testing.T) {
 		}
 	}
 	assert.Equal(t, []int64{3, 2}, w1Dims)
-	assert.Equal(t, m.Params[:6], w1)
+	assert.Equal(t, m.Params()[:6], w1)
 	assert.Equal(t, []float64{0.5, 4}, scale)
 
 	// No operator the WebAssembly runtime lacks a float64 kernel for, and

@@ -122,7 +122,7 @@ func goProbabilities(t *testing.T, m *nn.Model, rows string) [][]float64 {
 	t.Helper()
 	set, err := data.ReadCSV(strings.NewReader(rows), data.CSVOptions{
 		Columns: m.Encoder().Columns(), MissingTokens: m.Encoder().MissingTokens(),
-		Classes: m.Classes, Multilabel: m.Multilabel(),
+		Classes: m.Classes(), Multilabel: m.Multilabel(),
 	})
 	require.NoError(t, err)
 	p, err := m.ProbabilitiesSet(set)
@@ -372,13 +372,13 @@ penalty: {l2: 0.1}
 // calibrated model reaches a user.
 func withDecision(t *testing.T, m *nn.Model, d nn.Decision) *nn.Model {
 	t.Helper()
-	m.Decision = d
+	require.NoError(t, m.SetDecision(d))
 	var buf bytes.Buffer
 	_, err := m.WriteTo(&buf)
 	require.NoError(t, err)
 	out, err := nn.ReadModel(&buf)
 	require.NoError(t, err)
-	require.Equal(t, d.Temperature, out.Decision.Temperature)
+	require.Equal(t, d.Temperature, out.Decision().Temperature)
 	return out
 }
 
@@ -517,7 +517,7 @@ func TestRuntimeAgrees(t *testing.T) {
 						rel = math.Abs(*g)
 					}
 					worst = max(worst, rel)
-					require.LessOrEqual(t, rel, 1e-12, "row %d class %s: runtime %v, seine %v", r+1, c.model.Classes[j], *g, w)
+					require.LessOrEqual(t, rel, 1e-12, "row %d class %s: runtime %v, seine %v", r+1, c.model.Classes()[j], *g, w)
 				}
 				require.Equal(t, float64(decided(c.model, want[i][r])), got.Label.Data[r], "row %d label", r+1)
 				if c.model.Multilabel() {
@@ -527,7 +527,7 @@ func TestRuntimeAgrees(t *testing.T) {
 						if want[i][r][j] >= threshold(c.model, j) {
 							present = 1
 						}
-						require.Equal(t, present, got.Labels.Data[r*k+j], "row %d class %s present", r+1, c.model.Classes[j])
+						require.Equal(t, present, got.Labels.Data[r*k+j], "row %d class %s present", r+1, c.model.Classes()[j])
 					}
 				}
 			}
@@ -540,7 +540,7 @@ func TestRuntimeAgrees(t *testing.T) {
 // (see nn.Decision): class 1 when p₁ ≥ t for a binary sigmoid model with
 // an operating threshold t, else the most probable class.
 func decided(m *nn.Model, p []float64) int {
-	if th := m.Decision.Thresholds; len(th) == 1 && len(p) == 2 && !m.Multilabel() {
+	if th := m.Decision().Thresholds; len(th) == 1 && len(p) == 2 && !m.Multilabel() {
 		if p[1] >= th[0] {
 			return 1
 		}
@@ -552,8 +552,8 @@ func decided(m *nn.Model, p []float64) int {
 // threshold is class k's operating threshold of a multi-label model: the
 // model's, else 0.5 (nn.Model.Labels).
 func threshold(m *nn.Model, k int) float64 {
-	if m.Decision.Thresholds != nil {
-		return m.Decision.Thresholds[k]
+	if m.Decision().Thresholds != nil {
+		return m.Decision().Thresholds[k]
 	}
 	return 0.5
 }
@@ -587,11 +587,11 @@ func TestCheckerAccepts(t *testing.T) {
 // whose coded rows are the raw number rows.
 func TestDecidedMatchesNN(t *testing.T) {
 	for _, c := range exportCases(t) {
-		if c.model.Encoder().HasCategories() || c.model.Decision.IsZero() {
+		if c.model.Encoder().HasCategories() || c.model.Decision().IsZero() {
 			continue
 		}
 		set, err := data.ReadCSV(strings.NewReader(c.rows), data.CSVOptions{
-			Columns: c.model.Encoder().Columns(), Classes: c.model.Classes, Multilabel: c.model.Multilabel(),
+			Columns: c.model.Encoder().Columns(), Classes: c.model.Classes(), Multilabel: c.model.Multilabel(),
 		})
 		require.NoError(t, err)
 		p := goProbabilities(t, c.model, c.rows)

@@ -26,9 +26,9 @@ type ThresholdRule struct {
 // decide fits the model's decision on the holdout rows hx (encoded) with
 // targets hold.Y: a temperature when cfg.Calibrate, then thresholds by
 // cfg.Thresholds on the calibrated probabilities; and records the holdout
-// figures in the model's summary.
-func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cfg Config) error {
-	s := model.Spec
+// figures in sm, the model's summary.
+func decide(model *nn.Model, sm *nn.Summary, params []float64, hx *mat.Dense, hold *data.Set, cfg Config) error {
+	s := model.Spec()
 	net := model.Net()
 	r, _ := hx.Dims()
 	z := mat.DenseCopyOf(net.Logits(net.NewWorkspace(r), params, hx))
@@ -53,14 +53,14 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 		if err := score.Probabilities(&p, zt, out); err != nil {
 			return nil, err
 		}
-		return classColumns(&p, len(model.Classes)), nil
+		return classColumns(&p, len(model.Classes())), nil
 	}
 	ece := func(t float64) (float64, *mat.Dense, error) {
 		p, err := probs(t)
 		if err != nil {
 			return 0, nil, err
 		}
-		rel, err := score.ReliabilityDiagram(p, hold.Y, model.Classes, s.Output.Multilabel)
+		rel, err := score.ReliabilityDiagram(p, hold.Y, model.Classes(), s.Output.Multilabel)
 		if err != nil {
 			return 0, nil, err
 		}
@@ -70,14 +70,14 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 	if err != nil {
 		return fmt.Errorf("train: holdout calibration: %w", err)
 	}
-	model.Summary.HoldoutECEBefore, model.Summary.HoldoutECE = before, before
+	sm.HoldoutECEBefore, sm.HoldoutECE = before, before
 	if cfg.Calibrate {
 		t, err := score.FitTemperature(z, y, out)
 		if err != nil {
 			return fmt.Errorf("train: fitting the temperature on the holdout rows: %w", err)
 		}
 		d.Temperature = t.T
-		if model.Summary.HoldoutECE, p, err = ece(t.T); err != nil {
+		if sm.HoldoutECE, p, err = ece(t.T); err != nil {
 			return fmt.Errorf("train: holdout calibration: %w", err)
 		}
 	}
@@ -86,10 +86,10 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 		var ops []score.Operating
 		var names []string
 		if s.Output.Multilabel {
-			if ops, err = score.ChooseThresholds(p, hold.Y, model.Classes, th.Rule, th.Target); err != nil {
+			if ops, err = score.ChooseThresholds(p, hold.Y, model.Classes(), th.Rule, th.Target); err != nil {
 				return fmt.Errorf("train: choosing thresholds on the holdout rows: %w", err)
 			}
-			names = model.Classes
+			names = model.Classes()
 		} else {
 			probs1 := mat.Col(nil, 1, p)
 			pos := make([]bool, r)
@@ -98,13 +98,13 @@ func decide(model *nn.Model, params []float64, hx *mat.Dense, hold *data.Set, cf
 			}
 			op, err := score.ChooseThreshold(probs1, pos, th.Rule, th.Target)
 			if err != nil {
-				return fmt.Errorf("train: choosing the threshold of %q on the holdout rows: %w", model.Classes[1], err)
+				return fmt.Errorf("train: choosing the threshold of %q on the holdout rows: %w", model.Classes()[1], err)
 			}
-			ops, names = []score.Operating{op}, model.Classes[1:]
+			ops, names = []score.Operating{op}, model.Classes()[1:]
 		}
 		for i, op := range ops {
 			d.Thresholds = append(d.Thresholds, op.Threshold)
-			model.Summary.Operating = append(model.Summary.Operating, nn.OperatingPoint{
+			sm.Operating = append(model.Summary().Operating, nn.OperatingPoint{
 				Class: names[i], Threshold: op.Threshold, Precision: op.Precision, Recall: op.Recall, F1: op.F1})
 		}
 	}
@@ -128,7 +128,7 @@ func classColumns(p *mat.Dense, classes int) *mat.Dense {
 	return two
 }
 
-// noDecision marks the calibration figures of a model as not measured.
-func noDecision(model *nn.Model) {
-	model.Summary.HoldoutECE, model.Summary.HoldoutECEBefore = math.NaN(), math.NaN()
+// noDecision marks the calibration figures of a summary as not measured.
+func noDecision(sm *nn.Summary) {
+	sm.HoldoutECE, sm.HoldoutECEBefore = math.NaN(), math.NaN()
 }

@@ -21,7 +21,7 @@ func eceOn(t *testing.T, m *nn.Model, set *data.Set) float64 {
 	require.NoError(t, err)
 	var p mat.Dense
 	m.ProbabilitiesBatch(&p, coded)
-	rel, err := score.ReliabilityDiagram(&p, set.Y, m.Classes, false)
+	rel, err := score.ReliabilityDiagram(&p, set.Y, m.Classes(), false)
 	require.NoError(t, err)
 	return rel.ECE
 }
@@ -43,18 +43,18 @@ func TestCalibrateLowersECE(t *testing.T) {
 
 	plain, err := Train(context.Background(), s, tr, Config{Holdout: hold})
 	require.NoError(t, err)
-	assert.True(t, plain.Model.Decision.IsZero())
+	assert.True(t, plain.Model.Decision().IsZero())
 	cal, err := Train(context.Background(), s, tr, Config{Holdout: hold, Calibrate: true})
 	require.NoError(t, err)
-	T := cal.Model.Decision.Temperature
-	sm := cal.Model.Summary
+	T := cal.Model.Decision().Temperature
+	sm := cal.Model.Summary()
 	t.Logf("T = %.4g; holdout ECE %.4f → %.4f; test ECE %.4f → %.4f", T, sm.HoldoutECEBefore, sm.HoldoutECE, eceOn(t, plain.Model, test), eceOn(t, cal.Model, test))
 	assert.Greater(t, T, 1.0, "an over-confident model is cooled")
 	assert.Less(t, sm.HoldoutECE, sm.HoldoutECEBefore)
 	assert.Less(t, eceOn(t, cal.Model, test), eceOn(t, plain.Model, test), "the ECE falls on rows the temperature never saw")
 	// The params are the same run's: the temperature changes probabilities,
 	// not the net.
-	assert.Equal(t, plain.Model.Params, cal.Model.Params)
+	assert.Equal(t, plain.Model.Params(), cal.Model.Params())
 }
 
 // Operating thresholds chosen on holdout rows reach their target there (by
@@ -70,12 +70,12 @@ func TestThresholdRuleOnHoldout(t *testing.T) {
 	res, err := Train(context.Background(), s, tr, Config{Holdout: hold, Thresholds: &ThresholdRule{Rule: score.TargetRecall, Target: 0.99}})
 	require.NoError(t, err)
 	m := res.Model
-	require.Len(t, m.Decision.Thresholds, 1)
-	require.Len(t, m.Summary.Operating, 1)
-	op := m.Summary.Operating[0]
+	require.Len(t, m.Decision().Thresholds, 1)
+	require.Len(t, m.Summary().Operating, 1)
+	op := m.Summary().Operating[0]
 	assert.Equal(t, "malignant", op.Class)
-	assert.Equal(t, m.Decision.Thresholds[0], op.Threshold)
-	assert.Equal(t, "target-recall", m.Decision.Rule)
+	assert.Equal(t, m.Decision().Thresholds[0], op.Threshold)
+	assert.Equal(t, "target-recall", m.Decision().Rule)
 	assert.GreaterOrEqual(t, op.Recall, 0.99)
 
 	coded, err := m.Encoder().CodeSet(hold)

@@ -67,7 +67,7 @@ train:
 	}
 	m := res.Model
 	fmt.Printf("%d training rows, %d holdout rows, holdout accuracy at least 0.9: %v\n",
-		m.Summary.TrainRows, m.Summary.HoldoutRows, m.Summary.HoldoutAccuracy >= 0.9)
+		m.Summary().TrainRows, m.Summary().HoldoutRows, m.Summary().HoldoutAccuracy >= 0.9)
 	for _, in := range m.Encoder().Inputs() {
 		fmt.Printf("%s: %v, levels %v\n", in.Name, in.Type, in.Levels)
 	}

@@ -58,10 +58,10 @@ func twoBlobs(n int, scale float64, seed uint64) *data.Set {
 func requireSound(t *testing.T, m *nn.Model, set *data.Set) {
 	t.Helper()
 	require.NotNil(t, m)
-	for i, v := range m.Params {
+	for i, v := range m.Params() {
 		require.False(t, math.IsNaN(v) || math.IsInf(v, 0), "param %d is %v", i, v)
 	}
-	require.False(t, math.IsNaN(m.Summary.Cost) || math.IsInf(m.Summary.Cost, 0), "training cost %v", m.Summary.Cost)
+	require.False(t, math.IsNaN(m.Summary().Cost) || math.IsInf(m.Summary().Cost, 0), "training cost %v", m.Summary().Cost)
 	for i := range set.Rows() {
 		p := m.Probabilities(nil, set.X.RawRowView(i))
 		sum := 0.0
@@ -86,7 +86,7 @@ func TestFaultExtremeFeatures(t *testing.T) {
 		require.NoError(t, err, "scale %g", scale)
 		requireSound(t, res.Model, set)
 		// The blobs are separable up to a few noisy rows: at least 0.9.
-		assert.GreaterOrEqual(t, res.Model.Summary.TrainAccuracy, 0.9, "scale %g", scale)
+		assert.GreaterOrEqual(t, res.Model.Summary().TrainAccuracy, 0.9, "scale %g", scale)
 
 		raw, err := Train(context.Background(), s, set, Config{NoScale: true})
 		if err != nil {
@@ -94,7 +94,7 @@ func TestFaultExtremeFeatures(t *testing.T) {
 			assert.NotEmpty(t, err.Error())
 		}
 		if raw != nil && raw.Model != nil {
-			for i, v := range raw.Model.Params {
+			for i, v := range raw.Model.Params() {
 				require.False(t, math.IsNaN(v) || math.IsInf(v, 0), "scale %g unscaled: param %d is %v", scale, i, v)
 			}
 		}
@@ -188,7 +188,7 @@ func TestFaultSingleExampleClass(t *testing.T) {
 		res, err := Train(context.Background(), s, tr, Config{Holdout: ho})
 		require.NoError(t, err)
 		requireSound(t, res.Model, tr)
-		assert.False(t, math.IsNaN(res.Model.Summary.HoldoutCost))
+		assert.False(t, math.IsNaN(res.Model.Summary().HoldoutCost))
 	}
 	folds, err := data.Folds(set, 5, 1)
 	if err != nil {
@@ -222,8 +222,8 @@ func TestFaultConflictingDuplicates(t *testing.T) {
 	res, err := Train(context.Background(), s, set, Config{Limits: optim.Limits{Iterations: 200}})
 	require.NoError(t, err)
 	requireSound(t, res.Model, set)
-	assert.GreaterOrEqual(t, res.Model.Summary.Cost, math.Ln2-1e-12)
-	assert.LessOrEqual(t, res.Model.Summary.Cost, math.Ln2+1e-3)
+	assert.GreaterOrEqual(t, res.Model.Summary().Cost, math.Ln2-1e-12)
+	assert.LessOrEqual(t, res.Model.Summary().Cost, math.Ln2+1e-3)
 }
 
 // Same seed, data and settings give bit-identical params for every
@@ -250,11 +250,11 @@ func TestDeterministicEveryMethod(t *testing.T) {
 				require.NoError(t, err, name)
 			}
 			if first == nil {
-				first = res.Model.Params
+				first = res.Model.Params()
 				continue
 			}
 			for i := range first {
-				require.Equal(t, math.Float64bits(first[i]), math.Float64bits(res.Model.Params[i]), "%s: param %d with GOMAXPROCS=%d", name, i, procs)
+				require.Equal(t, math.Float64bits(first[i]), math.Float64bits(res.Model.Params()[i]), "%s: param %d with GOMAXPROCS=%d", name, i, procs)
 			}
 		}
 	}

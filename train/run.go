@@ -168,8 +168,10 @@ func (r *run) buildModel(method optim.Method, out optim.Result, params []float64
 	if err != nil {
 		return nil, err
 	}
-	model.Label = r.set.Label
-	model.Summary = nn.Summary{
+	if err := model.SetLabel(r.set.Label); err != nil {
+		return nil, err
+	}
+	sm := nn.Summary{
 		Method:       methodName(method),
 		Iterations:   out.Iterations,
 		Evaluations:  out.Evaluations,
@@ -186,9 +188,10 @@ func (r *run) buildModel(method optim.Method, out optim.Result, params []float64
 		return nil, fmt.Errorf("train: training rows: %w", err)
 	}
 	r.train = ts
-	model.Summary.TrainAccuracy = ts.Accuracy(params)
-	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = math.NaN(), math.NaN()
-	noDecision(model)
+	sm.TrainAccuracy = ts.Accuracy(params)
+	sm.HoldoutCost, sm.HoldoutAccuracy = math.NaN(), math.NaN()
+	noDecision(&sm)
+	model.SetSummary(sm)
 	return model, nil
 }
 
@@ -199,7 +202,10 @@ func (r *run) measureHoldout(model *nn.Model, params []float64) error {
 	if r.hold == nil {
 		return nil
 	}
-	model.Summary.HoldoutRows = r.cfg.Holdout.Rows()
-	model.Summary.HoldoutCost, model.Summary.HoldoutAccuracy = r.hold.Measure(params)
-	return decide(model, params, r.prep.HoldoutX, r.cfg.Holdout, r.cfg)
+	sm := model.Summary()
+	sm.HoldoutRows = r.cfg.Holdout.Rows()
+	sm.HoldoutCost, sm.HoldoutAccuracy = r.hold.Measure(params)
+	err := decide(model, &sm, params, r.prep.HoldoutX, r.cfg.Holdout, r.cfg)
+	model.SetSummary(sm)
+	return err
 }

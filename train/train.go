@@ -208,10 +208,12 @@ func saveCheckpoint(ck Checkpoint, prep *fit.Prepared, set *data.Set, seed uint6
 	if err != nil {
 		return err
 	}
-	m.Label = set.Label
-	m.Summary = nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
+	if err := m.SetLabel(set.Label); err != nil {
+		return err
+	}
+	m.SetSummary(nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
 		Status: optim.Running, Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
-		TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()}
+		TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()})
 	return ck.Save(m)
 }
 

@@ -74,7 +74,7 @@ func TestIrisFolds(t *testing.T) {
 		}
 		res, err := Train(context.Background(), s, set.Subset(rest), Config{Holdout: set.Subset(fold)})
 		require.NoError(t, err, "fold %d", k)
-		sum += res.Model.Summary.HoldoutAccuracy
+		sum += res.Model.Summary().HoldoutAccuracy
 	}
 	mean := sum / 5
 	t.Logf("iris 5-fold mean holdout accuracy %.4f", mean)
@@ -111,17 +111,17 @@ func TestWDBC(t *testing.T) {
 	require.NoError(t, err)
 	res, err := Train(context.Background(), s, tr, Config{Holdout: ho})
 	require.NoError(t, err)
-	t.Logf("wdbc holdout accuracy %.4f after %d iterations", res.Model.Summary.HoldoutAccuracy, res.Run.Iterations)
-	assert.GreaterOrEqual(t, res.Model.Summary.HoldoutAccuracy, 0.95)
+	t.Logf("wdbc holdout accuracy %.4f after %d iterations", res.Model.Summary().HoldoutAccuracy, res.Run.Iterations)
+	assert.GreaterOrEqual(t, res.Model.Summary().HoldoutAccuracy, 0.95)
 
 	raw, err := Train(context.Background(), s, tr, Config{Holdout: ho, NoScale: true, Limits: optim.Limits{Iterations: 100}})
 	if err != nil {
 		require.NotNil(t, raw, "an early stop must still return the best model: %v", err)
 	}
-	for _, v := range raw.Model.Params {
+	for _, v := range raw.Model.Params() {
 		require.False(t, math.IsNaN(v) || math.IsInf(v, 0))
 	}
-	assert.False(t, math.IsNaN(raw.Model.Summary.Cost))
+	assert.False(t, math.IsNaN(raw.Model.Summary().Cost))
 	for _, in := range raw.Model.Encoder().Inputs() {
 		assert.Equal(t, 0.0, in.Mean)
 		assert.Equal(t, 1.0, in.Scale)
@@ -144,11 +144,11 @@ func TestDeterministic(t *testing.T) {
 				continue
 			}
 			if first == nil {
-				first = res.Model.Params
+				first = res.Model.Params()
 				continue
 			}
 			for i := range first {
-				require.Equal(t, math.Float64bits(first[i]), math.Float64bits(res.Model.Params[i]), "param %d with GOMAXPROCS=%d", i, procs)
+				require.Equal(t, math.Float64bits(first[i]), math.Float64bits(res.Model.Params()[i]), "param %d with GOMAXPROCS=%d", i, procs)
 			}
 		}
 		runtime.GOMAXPROCS(old)
@@ -171,7 +171,7 @@ func TestKeepBestAndPatience(t *testing.T) {
 	for _, p := range res.Trace {
 		best = math.Min(best, p.HoldoutCost)
 	}
-	assert.InDelta(t, best, res.Model.Summary.HoldoutCost, 1e-12)
+	assert.InDelta(t, best, res.Model.Summary().HoldoutCost, 1e-12)
 	if res.Run.Status == optim.Stopped {
 		assert.Equal(t, res.BestIter+15, res.Trace[len(res.Trace)-1].Iter)
 	}

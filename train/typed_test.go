@@ -159,7 +159,7 @@ train:
 	assert.Equal(t, 3.0, in[0].Mean)
 	assert.InDelta(t, math.Sqrt2, in[0].Scale, 1e-15)
 	assert.Equal(t, []string{"p", "q"}, in[1].Levels)
-	assert.Equal(t, []string{"p", "q"}, res.Model.Spec.Types[1].Levels, "the model's spec holds the learned levels")
+	assert.Equal(t, []string{"p", "q"}, res.Model.Spec().Types[1].Levels, "the model's spec holds the learned levels")
 	assert.Equal(t, 1+2, res.Model.Net().Inputs())
 }
 

@@ -155,10 +155,10 @@ func runEvaluate(ctx context.Context, e *env, args []string) error {
 // was trained with unless label names another.
 func dataForModel(m *nn.Model, label string, noLabel bool) data.CSVOptions {
 	if label == "" {
-		label = m.Label
+		label = m.Label()
 	}
 	enc := m.Encoder()
-	return data.CSVOptions{Label: label, NoLabel: noLabel, Classes: m.Classes, Multilabel: m.Multilabel(),
+	return data.CSVOptions{Label: label, NoLabel: noLabel, Classes: m.Classes(), Multilabel: m.Multilabel(),
 		Columns: enc.Columns(), MissingTokens: enc.MissingTokens()}
 }
 
@@ -168,12 +168,12 @@ func evaluate(m *nn.Model, set *data.Set, thresholds []float64) (*score.Report, 
 	if err != nil {
 		return nil, err
 	}
-	return score.Evaluate(p, set.Y, m.Classes, score.Options{Multilabel: m.Multilabel(), Thresholds: thresholds})
+	return score.Evaluate(p, set.Y, m.Classes(), score.Options{Multilabel: m.Multilabel(), Thresholds: thresholds})
 }
 
 func displayName(m *nn.Model) string {
-	if m.Spec.Name != "" {
-		return m.Spec.Name
+	if m.Spec().Name != "" {
+		return m.Spec().Name
 	}
 	return "model"
 }
@@ -270,7 +270,7 @@ func pad(s string, width int) string {
 // tilted reports whether m's decisions lean away from the most probable
 // class on purpose: class weights in its cost or operating thresholds.
 func tilted(m *nn.Model) bool {
-	return m.Summary.ClassWeights != nil || m.Decision.Thresholds != nil
+	return m.Summary().ClassWeights != nil || m.Decision().Thresholds != nil
 }
 
 // noLabelHint turns "no label column" into a plain statement that points to

@@ -38,7 +38,7 @@ func TestExport(t *testing.T) {
 	}
 	var classes []string
 	require.NoError(t, json.Unmarshal([]byte(meta["classes"]), &classes))
-	assert.Equal(t, m.Classes, classes)
+	assert.Equal(t, m.Classes(), classes)
 	assert.Equal(t, "session-triage", meta["spec_name"])
 
 	r = seine(t, "export", "-model", baseModel, "-out", out, "-opset", "13")

@@ -67,9 +67,9 @@ func runInspect(ctx context.Context, e *env, args []string) error {
 		if m, err = loadModel(ctx, path); err != nil {
 			return err
 		}
-		s = m.Spec
-		if m.Summary.TrainRows > 0 {
-			train, holdout = m.Summary.TrainRows, m.Summary.HoldoutRows
+		s = m.Spec()
+		if m.Summary().TrainRows > 0 {
+			train, holdout = m.Summary().TrainRows, m.Summary().HoldoutRows
 		}
 	}
 	if *rows > 0 {
@@ -158,7 +158,7 @@ func optimState(o spec.Optimizer) (string, int) {
 }
 
 func writeModelSummary(w io.Writer, m *nn.Model) {
-	sm := m.Summary
+	sm := m.Summary()
 	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", safe(sm.Method), sm.Iterations, sm.Evaluations, sm.Seconds, safe(sm.Library))
 	fmt.Fprintf(w, "  stopped         %s\n", safe(stopReason(sm.Status)))
 	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)

@@ -120,7 +120,7 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 		head[nk] = "classes"
 	}
 	if probs {
-		for _, c := range m.Classes {
+		for _, c := range m.Classes() {
 			head = append(head, "p_"+c)
 		}
 	}
@@ -140,7 +140,7 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 					t = thresholds[j]
 				}
 				if v >= t {
-					set = append(set, m.Classes[j])
+					set = append(set, m.Classes()[j])
 				}
 			}
 			rec[nk] = strings.Join(set, "|")
@@ -157,7 +157,7 @@ func writePredictions(w io.Writer, m *nn.Model, p *mat.Dense, keep []string, kep
 					best = 1
 				}
 			}
-			rec[nk] = m.Classes[best]
+			rec[nk] = m.Classes()[best]
 		}
 		if nk > 0 {
 			copy(rec, kept[i])
@@ -206,26 +206,26 @@ func loadDecidingModel(ctx context.Context, path string, override float64) (*nn.
 // multi-label models, the most probable class otherwise). A softmax model
 // takes no threshold.
 func decisionThresholds(m *nn.Model, override float64, path string) ([]float64, error) {
-	sigmoid := m.Spec.Output.Activation == spec.Sigmoid
+	sigmoid := m.Spec().Output.Activation == spec.Sigmoid
 	if override == 0 {
 		if !sigmoid {
 			return nil, nil
 		}
-		return m.Decision.Thresholds, nil
+		return m.Decision().Thresholds, nil
 	}
 	switch {
 	case !sigmoid:
 		return nil, usagef("-threshold applies to sigmoid outputs only; %s is a softmax model, which takes the most probable class", path)
 	case m.Multilabel():
-		t := make([]float64, len(m.Classes))
+		t := make([]float64, len(m.Classes()))
 		for i := range t {
 			t[i] = override
 		}
 		return t, nil
-	case len(m.Classes) == 2:
+	case len(m.Classes()) == 2:
 		return []float64{override}, nil
 	}
-	return nil, usagef("-threshold: %s has %d independent sigmoid classes but is not multi-label", path, len(m.Classes))
+	return nil, usagef("-threshold: %s has %d independent sigmoid classes but is not multi-label", path, len(m.Classes()))
 }
 
 // checkFinite reports the first row whose probabilities are not finite

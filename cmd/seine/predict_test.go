@@ -81,7 +81,7 @@ func TestPredict(t *testing.T) {
 		if rec[0] != want[best][2:] {
 			t.Errorf("row %d: class %q but the largest probability is %s", i+1, rec[0], want[best])
 		}
-		if i == 0 && rec[0] != m.Classes[0] {
+		if i == 0 && rec[0] != m.Classes()[0] {
 			// The first row of sessions.csv is a human session that every
 			// model trained here gets right (probability 0.99 at 100 iterations).
 			t.Errorf("row 1: %q, want human", rec[0])
@@ -282,8 +282,8 @@ func TestCheckpointResume(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c.Summary.Iterations != 20 || c.Summary.Status != optim.Running {
-		t.Errorf("checkpoint summary %+v", c.Summary)
+	if c.Summary().Iterations != 20 || c.Summary().Status != optim.Running {
+		t.Errorf("checkpoint summary %+v", c.Summary())
 	}
 	r = seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", out, "-iterations", "1", "-resume", ck)
 	if r.code != 0 {
@@ -292,8 +292,8 @@ func TestCheckpointResume(t *testing.T) {
 	// L-BFGS never raises the cost, so after one more iteration the cost is
 	// at most the checkpoint's (which is well below the start, ~1.6).
 	m, _ := nn.Load(out)
-	if !(m.Summary.Cost <= c.Summary.Cost) {
-		t.Errorf("resumed cost %g above the checkpoint's %g", m.Summary.Cost, c.Summary.Cost)
+	if !(m.Summary().Cost <= c.Summary().Cost) {
+		t.Errorf("resumed cost %g above the checkpoint's %g", m.Summary().Cost, c.Summary().Cost)
 	}
 	before, _ := os.ReadFile(out)
 	r = seine(t, "train", "-spec", "testdata/triage_small.yaml", "-data", triageData, "-out", out, "-resume", ck)

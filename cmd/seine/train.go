@@ -321,13 +321,13 @@ func resumeParams(ctx context.Context, path string, s *spec.Network) ([]float64,
 	}
 	// Category levels are learned from the data: compare against the spec
 	// with the model's levels, as training on the same rows resolves it.
-	if got, want := netShape(m.Spec), netShape(m.Encoder().Resolve(s)); got != want {
+	if got, want := netShape(m.Spec()), netShape(m.Encoder().Resolve(s)); got != want {
 		return nil, fmt.Errorf("-resume %s: its net is %s, the spec's is %s", path, got, want)
 	}
-	if strings.Join(m.Classes, ",") != strings.Join(s.Output.Classes, ",") {
-		return nil, fmt.Errorf("-resume %s: its classes are %s, the spec's are %s", path, strings.Join(m.Classes, ", "), strings.Join(s.Output.Classes, ", "))
+	if strings.Join(m.Classes(), ",") != strings.Join(s.Output.Classes, ",") {
+		return nil, fmt.Errorf("-resume %s: its classes are %s, the spec's are %s", path, strings.Join(m.Classes(), ", "), strings.Join(s.Output.Classes, ", "))
 	}
-	return m.Params, nil
+	return m.Params(), nil
 }
 
 // netShape describes the layers of s in one line, e.g.
@@ -389,8 +389,8 @@ func stopReason(status optim.Status) string {
 // writeTrainSummary writes the block that ends a training run.
 func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keepBest bool) {
 	m := res.Model
-	sm := m.Summary
-	name := m.Spec.Name
+	sm := m.Summary()
+	name := m.Spec().Name
 	if name == "" {
 		name = "(unnamed spec)"
 	}
@@ -401,7 +401,7 @@ func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keep
 	} else {
 		row("rows", "%d training, no holdout", sm.TrainRows)
 	}
-	row("net", "%s, %d params", netShape(m.Spec), len(m.Params))
+	row("net", "%s, %d params", netShape(m.Spec()), len(m.Params()))
 	row("method", "%s, %d iterations, %.0f evaluations, %.2fs", sm.Method, sm.Iterations, sm.Evaluations, sm.Seconds)
 	row("stopped", "%s", stopReason(sm.Status))
 	row("final cost", "%.6g (training rows, penalty included)", sm.Cost)
@@ -414,11 +414,11 @@ func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keep
 	if keepBest {
 		row("kept", "params of iteration %d (lowest holdout cost)", res.BestIter)
 	}
-	if t := m.Decision.Temperature; t != 0 && t != 1 {
+	if t := m.Decision().Temperature; t != 0 && t != 1 {
 		row("calibration", "temperature %.4g; holdout ECE %.4f → %.4f", t, sm.HoldoutECEBefore, sm.HoldoutECE)
 	}
 	for _, op := range sm.Operating {
-		row("threshold", "%s ≥ %.4g (%s): holdout precision %.4f, recall %.4f, F1 %.4f", op.Class, op.Threshold, ruleText(m.Decision), op.Precision, op.Recall, op.F1)
+		row("threshold", "%s ≥ %.4g (%s): holdout precision %.4f, recall %.4f, F1 %.4f", op.Class, op.Threshold, ruleText(m.Decision()), op.Precision, op.Recall, op.F1)
 	}
 }
 

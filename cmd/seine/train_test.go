@@ -121,16 +121,16 @@ func TestTrainOverrides(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tr := m.Spec.Train
-	if tr.Optimizer.String() != "adam" || tr.Rate != 0.01 || tr.Batch != 500 || tr.Iterations != 4 || m.Spec.Init.Seed != 3 {
-		t.Errorf("saved spec train section %+v, seed %d; want adam, rate 0.01, batch 500, 4 iterations, seed 3", tr, m.Spec.Init.Seed)
+	tr := m.Spec().Train
+	if tr.Optimizer.String() != "adam" || tr.Rate != 0.01 || tr.Batch != 500 || tr.Iterations != 4 || m.Spec().Init.Seed != 3 {
+		t.Errorf("saved spec train section %+v, seed %d; want adam, rate 0.01, batch 500, 4 iterations, seed 3", tr, m.Spec().Init.Seed)
 	}
 	if tr.Tolerance != 1e-6 {
 		t.Errorf("tolerance %g: a flag not set must keep the spec's 1e-6", tr.Tolerance)
 	}
 	// 3000 rows, holdout 0.2: the largest remainder split gives exactly
 	// round(0.2·3000) = 600 holdout rows (data.Split's documentation).
-	sm := m.Summary
+	sm := m.Summary()
 	if sm.TrainRows != 2400 || sm.HoldoutRows != 600 || sm.Iterations != 4 || sm.Method != "adam" {
 		t.Errorf("summary %+v", sm)
 	}
@@ -194,8 +194,8 @@ func TestTrainInterrupt(t *testing.T) {
 	if err != nil {
 		t.Fatalf("the saved model does not load: %v", err)
 	}
-	if m.Summary.Iterations < 1 || m.Summary.Status != optim.Cancelled {
-		t.Errorf("summary %+v", m.Summary)
+	if m.Summary().Iterations < 1 || m.Summary().Status != optim.Cancelled {
+		t.Errorf("summary %+v", m.Summary())
 	}
 	if !strings.Contains(stdout.String(), "stopped       interrupted") {
 		t.Errorf("summary block %q", stdout.String())

@@ -96,7 +96,7 @@ type served struct {
 
 // serve binds m's inputs in their own order.
 func bind(m *nn.Model) (*served, error) {
-	b, err := m.Bind(m.Features)
+	b, err := m.Bind(m.Features())
 	if err != nil {
 		return nil, err
 	}
@@ -174,7 +174,7 @@ const maxBody = 1 << 20
 func (s *server) classify(w http.ResponseWriter, r *http.Request) {
 	sv := s.model.Load() // one model for the whole request
 	m := sv.m
-	rows, single, ferr := parseRequest(http.MaxBytesReader(w, r.Body, maxBody), m.Features)
+	rows, single, ferr := parseRequest(http.MaxBytesReader(w, r.Body, maxBody), m.Features())
 	if ferr != nil {
 		status := http.StatusBadRequest
 		var tooBig *http.MaxBytesError
@@ -185,7 +185,7 @@ func (s *server) classify(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	results := make([]result, len(rows))
-	p := make([]float64, len(m.Classes))
+	p := make([]float64, len(m.Classes()))
 	for i, x := range rows {
 		p, err := sv.b.Probabilities(p, x)
 		if err != nil {
@@ -194,7 +194,7 @@ func (s *server) classify(w http.ResponseWriter, r *http.Request) {
 			if errors.As(err, &fe) {
 				field += "." + fe.Field
 				if !single {
-					field = fmt.Sprintf("rows[%d][%d]", i, slices.Index(m.Features, fe.Field))
+					field = fmt.Sprintf("rows[%d][%d]", i, slices.Index(m.Features(), fe.Field))
 				}
 			}
 			writeError(w, http.StatusBadRequest, field, fmt.Sprintf("%s: %v", field, errors.Unwrap(err)))
@@ -203,12 +203,12 @@ func (s *server) classify(w http.ResponseWriter, r *http.Request) {
 		probs := make(map[string]float64, len(p))
 		best := 0
 		for k, v := range p {
-			probs[m.Classes[k]] = v
+			probs[m.Classes()[k]] = v
 			if v > p[best] {
 				best = k
 			}
 		}
-		results[i] = result{Class: m.Classes[best], Probabilities: probs}
+		results[i] = result{Class: m.Classes()[best], Probabilities: probs}
 	}
 	if single {
 		writeJSON(w, http.StatusOK, results[0])
@@ -238,10 +238,10 @@ func (s *server) healthz(w http.ResponseWriter, r *http.Request) {
 	}
 	writeJSON(w, http.StatusOK, map[string]any{
 		"status":   "ok",
-		"classes":  m.Classes,
-		"features": m.Features,
+		"classes":  m.Classes(),
+		"features": m.Features(),
 		"inputs":   inputs,
-		"params":   len(m.Params),
+		"params":   len(m.Params()),
 	})
 }
 
@@ -265,7 +265,7 @@ func (s *server) reload(w http.ResponseWriter, r *http.Request) {
 	}
 	s.model.Store(sv)
 	s.logger.Printf("reloaded %s", s.modelPath)
-	writeJSON(w, http.StatusOK, map[string]any{"status": "reloaded", "params": len(m.Params)})
+	writeJSON(w, http.StatusOK, map[string]any{"status": "reloaded", "params": len(m.Params())})
 }
 
 func writeError(w http.ResponseWriter, status int, field, msg string) {

@@ -58,7 +58,7 @@ func triageRows(t *testing.T, m *nn.Model) *data.Set {
 	require.NoError(t, err)
 	defer f.Close()
 	enc := m.Encoder()
-	set, err := data.ReadCSV(f, data.CSVOptions{Classes: m.Classes, Columns: enc.Columns(), MissingTokens: enc.MissingTokens(), Label: m.Label})
+	set, err := data.ReadCSV(f, data.CSVOptions{Classes: m.Classes(), Columns: enc.Columns(), MissingTokens: enc.MissingTokens(), Label: m.Label()})
 	require.NoError(t, err)
 	return set
 }
@@ -79,8 +79,8 @@ func rawRows(t *testing.T, m *nn.Model, n int) [][]any {
 	}
 	rows := make([][]any, n)
 	for i := range rows {
-		rows[i] = make([]any, len(m.Features))
-		for j, name := range m.Features {
+		rows[i] = make([]any, len(m.Features()))
+		for j, name := range m.Features() {
 			cell := recs[i+1][col[name]]
 			switch v, err := strconv.ParseFloat(cell, 64); {
 			case cell == "":
@@ -107,8 +107,8 @@ func codedRows(t *testing.T, m *nn.Model, n int) *mat.Dense {
 // validRow is a JSON row of the model's inputs: v for every number and
 // "browser" for agent_family.
 func validRow(m *nn.Model, v string) string {
-	vals := make([]string, len(m.Features))
-	for j, f := range m.Features {
+	vals := make([]string, len(m.Features()))
+	for j, f := range m.Features() {
 		vals[j] = v
 		if f == "agent_family" {
 			vals[j] = `"browser"`
@@ -156,10 +156,10 @@ func TestClassifyRows(t *testing.T) {
 	require.NoError(t, json.Unmarshal(body, &got))
 	require.Len(t, got.Results, n)
 	for i, r := range got.Results {
-		assert.Equal(t, m.Classes[m.Predict(rows[i])], r.Class, "row %d", i)
+		assert.Equal(t, m.Classes()[m.Predict(rows[i])], r.Class, "row %d", i)
 		p := m.Probabilities(nil, rows[i])
 		sum := 0.0
-		for k, c := range m.Classes {
+		for k, c := range m.Classes() {
 			assert.Equal(t, p[k], r.Probabilities[c], "row %d class %s", i, c)
 			sum += r.Probabilities[c]
 		}
@@ -176,20 +176,20 @@ func TestClassifyFeatures(t *testing.T) {
 	url := startServer(t, s)
 	m := embeddedModel(t)
 	raw, coded := rawRows(t, m, 1000), codedRows(t, m, 1000)
-	require.Nil(t, raw[25][slices.Index(m.Features, "resp_kb")], "sessions.csv line 27 has no resp_kb")
+	require.Nil(t, raw[25][slices.Index(m.Features(), "resp_kb")], "sessions.csv line 27 has no resp_kb")
 
 	for _, i := range []int{0, 1, 2, 3, 4, 25, 57, 999} {
 		row := coded.RawRowView(i)
 		feats := make(map[string]any, len(row))
-		for j, name := range m.Features {
+		for j, name := range m.Features() {
 			feats[name] = raw[i][j]
 		}
 		status, body := post(t, url+"/classify", mustJSON(t, map[string]any{"features": feats}))
 		require.Equal(t, http.StatusOK, status, string(body))
 		var r result
 		require.NoError(t, json.Unmarshal(body, &r))
-		assert.Equal(t, m.Classes[m.Predict(row)], r.Class, "row %d", i)
-		assert.Len(t, r.Probabilities, len(m.Classes))
+		assert.Equal(t, m.Classes()[m.Predict(row)], r.Class, "row %d", i)
+		assert.Len(t, r.Probabilities, len(m.Classes()))
 	}
 }
 
@@ -207,7 +207,7 @@ func TestBadRequests(t *testing.T) {
 		var b strings.Builder
 		b.WriteString(`{"features": {`)
 		first := true
-		for _, f := range m.Features {
+		for _, f := range m.Features() {
 			v := "1.5"
 			if f == "agent_family" {
 				v = `"browser"`
@@ -252,7 +252,7 @@ func TestBadRequests(t *testing.T) {
 		{"text for a number", feats("req_per_min", `"fast"`), 400, "features.req_per_min"},
 		{"number for a category", feats("agent_family", "3"), 400, "features.agent_family"},
 		{"a list", feats("agent_family", `["cli"]`), 400, "features.agent_family"},
-		{"rows category as number", `{"rows": [[` + strings.Replace(row, `"browser"`, "2", 1) + `]]}`, 400, fmt.Sprintf("rows[0][%d]", slices.Index(m.Features, "agent_family"))},
+		{"rows category as number", `{"rows": [[` + strings.Replace(row, `"browser"`, "2", 1) + `]]}`, 400, fmt.Sprintf("rows[0][%d]", slices.Index(m.Features(), "agent_family"))},
 		{"features not an object", `{"features": [1]}`, 400, "features"},
 		{"rows NaN", `{"rows": [[` + row + `], [1, 1, NaN]]}`, 400, "rows[1][2]"},
 		{"rows boolean", `{"rows": [[true]]}`, 400, "rows[0][0]"},
@@ -328,13 +328,13 @@ func TestReload(t *testing.T) {
 	}
 	before := classify()
 
-	zero, err := nn.NewModel(m.Spec, make([]float64, len(m.Params)), m.Encoder(), m.Classes)
+	zero, err := nn.NewModel(m.Spec(), make([]float64, len(m.Params())), m.Encoder(), m.Classes())
 	require.NoError(t, err)
 	require.NoError(t, zero.Save(path))
 	status, body := post(t, url+"/reload", "")
 	require.Equal(t, http.StatusOK, status, string(body))
 	after := classify()
-	for _, c := range m.Classes {
+	for _, c := range m.Classes() {
 		assert.Equal(t, 0.2, after.Probabilities[c], "zero params give softmax(0) = 1/5 for %s", c)
 	}
 	assert.NotEqual(t, before.Probabilities, after.Probabilities)
@@ -436,16 +436,16 @@ func TestEmbeddedModelIsGenerated(t *testing.T) {
 	assert.GreaterOrEqual(t, fit.Report.Accuracy, 0.95)
 
 	fresh, embedded := fit.Result.Model, embeddedModel(t)
-	assert.Equal(t, embedded.Classes, fresh.Classes)
-	assert.Equal(t, embedded.Features, fresh.Features)
+	assert.Equal(t, embedded.Classes(), fresh.Classes())
+	assert.Equal(t, embedded.Features(), fresh.Features())
 	if runtime.GOARCH != "amd64" || !pureGo {
 		t.Skipf("bit comparison made on amd64 with the pure-Go BLAS only (GOARCH %s, pure Go %v)", runtime.GOARCH, pureGo)
 	}
 	var a, b bytes.Buffer
-	for _, x := range fresh.Params {
+	for _, x := range fresh.Params() {
 		fmt.Fprintf(&a, "%x ", math.Float64bits(x))
 	}
-	for _, x := range embedded.Params {
+	for _, x := range embedded.Params() {
 		fmt.Fprintf(&b, "%x ", math.Float64bits(x))
 	}
 	assert.True(t, fresh.Encoder().Equal(embedded.Encoder()), "triage.seine.json's encoder is stale: run `go run ./examples/service/gen`")

@@ -208,7 +208,7 @@ func build(p *Page) (*view, error) {
 	if r.Ranking == nil || r.Reliability == nil {
 		return nil, fmt.Errorf("%w: the report lacks its curves (use score.Evaluate)", ErrPage)
 	}
-	v := &view{Title: m.Spec.Name, ModelFile: p.ModelFile, Version: p.Version, Data: p.Data, Multilabel: r.Multilabel,
+	v := &view{Title: m.Spec().Name, ModelFile: p.ModelFile, Version: p.Version, Data: p.Data, Multilabel: r.Multilabel,
 		Warnings: r.Warnings, Cautions: p.Cautions}
 	if v.Title == "" {
 		v.Title = "model"
@@ -276,7 +276,7 @@ func build(p *Page) (*view, error) {
 		}
 		v.Bins = append(v.Bins, row)
 	}
-	sm := m.Summary
+	sm := m.Summary()
 	if finite(sm.HoldoutECEBefore) {
 		v.ECEHoldout = append(v.ECEHoldout, kv{"holdout ECE before temperature", fmt.Sprintf("%.4f", sm.HoldoutECEBefore)})
 	}
@@ -289,7 +289,7 @@ func build(p *Page) (*view, error) {
 	v.Decision, v.Operating = decision(m, p.Override)
 	v.Training = training(m)
 	var sb strings.Builder
-	if err := m.Spec.WriteYAML(&sb); err != nil {
+	if err := m.Spec().WriteYAML(&sb); err != nil {
 		return nil, fmt.Errorf("%w: the model's spec: %w", ErrPage, err)
 	}
 	v.Spec = sb.String()
@@ -317,16 +317,16 @@ func inlineSVG(f Figure) (template.HTML, error) {
 // decision describes how the model decides and the operating points
 // chosen on holdout rows.
 func decision(m *nn.Model, override float64) ([]kv, []operating) {
-	d := m.Decision
+	d := m.Decision()
 	var out []kv
-	sigmoid := m.Spec.Output.Activation == spec.Sigmoid
+	sigmoid := m.Spec().Output.Activation == spec.Sigmoid
 	switch {
 	case !sigmoid:
 		out = append(out, kv{"output", "softmax: each row is given its most probable class (operating thresholds apply to sigmoid outputs only)"})
 	case m.Multilabel():
 		out = append(out, kv{"output", "sigmoid, multi-label: each class is present when its probability is at least its threshold"})
 	default:
-		out = append(out, kv{"output", fmt.Sprintf("sigmoid, binary: a row is %q when the probability of %q is at least the threshold", m.Classes[1], m.Classes[1])})
+		out = append(out, kv{"output", fmt.Sprintf("sigmoid, binary: a row is %q when the probability of %q is at least the threshold", m.Classes()[1], m.Classes()[1])})
 	}
 	if t := d.Temperature; t != 0 && t != 1 {
 		out = append(out, kv{"temperature", fmt.Sprintf("T = %.4g: the logits are divided by T before the output activation, fitted on the holdout rows (Guo et al. 2017)", t)})
@@ -358,7 +358,7 @@ func decision(m *nn.Model, override float64) ([]kv, []operating) {
 		out = append(out, kv{"in this report", fmt.Sprintf("threshold %g given in place of the model's", override)})
 	}
 	var ops []operating
-	for _, o := range m.Summary.Operating {
+	for _, o := range m.Summary().Operating {
 		ops = append(ops, operating{Class: o.Class, Threshold: fmt.Sprintf("%.4g", o.Threshold),
 			Precision: fmt.Sprintf("%.4f", o.Precision), Recall: fmt.Sprintf("%.4f", o.Recall), F1: fmt.Sprintf("%.4f", o.F1)})
 	}
@@ -367,7 +367,7 @@ func decision(m *nn.Model, override float64) ([]kv, []operating) {
 
 // training lists the model's training summary.
 func training(m *nn.Model) []kv {
-	sm := m.Summary
+	sm := m.Summary()
 	num := func(v float64) string {
 		if !finite(v) {
 			return "–"
@@ -394,7 +394,7 @@ func training(m *nn.Model) []kv {
 	if sm.ClassWeights != nil {
 		ws := make([]string, len(sm.ClassWeights))
 		for i, w := range sm.ClassWeights {
-			ws[i] = fmt.Sprintf("%s %.4g", m.Classes[i], w)
+			ws[i] = fmt.Sprintf("%s %.4g", m.Classes()[i], w)
 		}
 		out = append(out, kv{"class weights", strings.Join(ws, ", ")})
 	} else {

@@ -59,9 +59,9 @@ output:
 	}
 	var p mat.Dense
 	m.ProbabilitiesBatch(&p, x)
-	rep, err := score.Evaluate(&p, y, m.Classes, score.Options{})
+	rep, err := score.Evaluate(&p, y, m.Classes(), score.Options{})
 	require.NoError(t, err)
-	set := &data.Set{X: x, Y: y, Classes: m.Classes, Features: m.Features}
+	set := &data.Set{X: x, Y: y, Classes: m.Classes(), Features: m.Features()}
 	im, err := diag.PermutationImportance(context.Background(), m, set, diag.ImportanceConfig{Repeats: 3})
 	require.NoError(t, err)
 	rk := rep.Ranking.PerClass[0]
