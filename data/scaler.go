@@ -117,16 +117,6 @@ func meanSD(v []float64) (mean, sd float64, constant bool) {
 	return mean, sd, false
 }
 
-// IdentityScaler returns a Scaler of the given width that leaves data
-// unchanged (Mean 0, Scale 1), for training without standardization.
-func IdentityScaler(features int) *Scaler {
-	s := &Scaler{Mean: make([]float64, features), Scale: make([]float64, features)}
-	for j := range s.Scale {
-		s.Scale[j] = 1
-	}
-	return s
-}
-
 // Transform writes the scaled x into dst. dst may be x itself (no other
 // overlap is allowed); an empty dst is sized to x. A column count other
 // than len(Mean), or a dst of another shape, panics.

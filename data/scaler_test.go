@@ -95,15 +95,6 @@ func TestScalerExtremeValues(t *testing.T) {
 	assert.InEpsilon(t, sd*1e308, sc.Scale[0], 1e-12)
 }
 
-func TestIdentityScaler(t *testing.T) {
-	sc := IdentityScaler(3)
-	require.NoError(t, sc.Check())
-	x := []float64{-1.5, 0, 1e300}
-	dst := make([]float64, 3)
-	sc.TransformRow(dst, x)
-	assert.Equal(t, x, dst)
-}
-
 func TestScalerCheck(t *testing.T) {
 	for _, sc := range []Scaler{
 		{},
@@ -118,7 +109,7 @@ func TestScalerCheck(t *testing.T) {
 }
 
 func TestScalerPanicsOnWrongWidth(t *testing.T) {
-	sc := IdentityScaler(2)
+	sc := &Scaler{Mean: []float64{0, 0}, Scale: []float64{1, 1}}
 	assert.Panics(t, func() { sc.TransformRow(make([]float64, 3), make([]float64, 3)) })
 	assert.Panics(t, func() { sc.Transform(&mat.Dense{}, mat.NewDense(2, 3, nil)) })
 	assert.Panics(t, func() { sc.Transform(mat.NewDense(3, 2, nil), mat.NewDense(2, 2, nil)) })

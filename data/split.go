@@ -134,35 +134,3 @@ func TrainRows(folds [][]int, k int) []int {
 	slices.Sort(out)
 	return out
 }
-
-// Batches deals the row indices 0 … n−1, shuffled by rng (nil keeps them in
-// order), into mini-batches of size rows; the last batch holds the
-// remainder. size ≤ 0 or ≥ n gives one batch of all rows. The batches share
-// one backing array (do not append to a batch); passing the previous result
-// as dst reuses it, so a call per epoch allocates nothing after the first.
-func Batches(dst [][]int, n, size int, rng *rand.Rand) [][]int {
-	if n <= 0 {
-		return dst[:0]
-	}
-	if size <= 0 || size > n {
-		size = n
-	}
-	var perm []int
-	if len(dst) > 0 && cap(dst[0]) >= n {
-		perm = dst[0][:n]
-	} else {
-		perm = make([]int, n)
-	}
-	for i := range perm {
-		perm[i] = i
-	}
-	if rng != nil {
-		rng.Shuffle(n, func(i, j int) { perm[i], perm[j] = perm[j], perm[i] })
-	}
-	dst = dst[:0]
-	for lo := 0; lo < n; lo += size {
-		hi := min(lo+size, n)
-		dst = append(dst, perm[lo:hi])
-	}
-	return dst
-}

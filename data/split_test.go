@@ -3,7 +3,6 @@ package data
 import (
 	"fmt"
 	"math"
-	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -192,23 +191,6 @@ func TestFolds(t *testing.T) {
 		_, err := Folds(classSet(repeat(3, 3), 2), k, 1)
 		assert.ErrorIs(t, err, ErrFolds, "k = %d", k)
 	}
-}
-
-func TestBatches(t *testing.T) {
-	rng := rand.New(rand.NewPCG(4, 4))
-	b := Batches(nil, 10, 4, rng)
-	require.Len(t, b, 3)
-	assert.Equal(t, []int{4, 4, 2}, []int{len(b[0]), len(b[1]), len(b[2])})
-	checkPartition(t, 10, sorted(b[0]), sorted(b[1]), sorted(b[2]))
-	first := slices.Concat(b...)
-	b = Batches(b, 10, 4, rng)
-	assert.NotEqual(t, first, slices.Concat(b...), "a new shuffle")
-	allocs := testing.AllocsPerRun(50, func() { b = Batches(b, 10, 4, rng) })
-	assert.Zero(t, allocs, "reuses dst")
-
-	assert.Equal(t, [][]int{{0, 1, 2}}, Batches(nil, 3, 0, nil), "size 0: one batch")
-	assert.Equal(t, [][]int{{0, 1, 2}}, Batches(nil, 3, 5, nil))
-	assert.Empty(t, Batches(nil, 0, 5, nil))
 }
 
 func sorted(v []int) []int { return slices.Sorted(slices.Values(v)) }
