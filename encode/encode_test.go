@@ -94,10 +94,10 @@ func TestMedianMode(t *testing.T) {
 
 func TestLevelsOrder(t *testing.T) {
 	l := []string{"b", "a", "c", "B"}
-	SortLevels(l)
+	sortLevels(l)
 	assert.Equal(t, []string{"B", "a", "b", "c"}, l, "byte order")
 	l = []string{"10", "9", "100", "-1"}
-	SortLevels(l)
+	sortLevels(l)
 	assert.Equal(t, []string{"-1", "9", "10", "100"}, l, "numeric when every level is an integer")
 }
 

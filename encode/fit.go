@@ -251,7 +251,7 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 		if len(in.Levels) > MaxLevels {
 			return fmt.Errorf("%d distinct values in the training rows, more than %d (an identifier column?)", len(in.Levels), MaxLevels)
 		}
-		SortLevels(in.Levels)
+		sortLevels(in.Levels)
 		if len(in.Levels) < 2 {
 			seen := "none"
 			if len(in.Levels) == 1 {
@@ -279,9 +279,9 @@ func fitCategory(in *Input, t spec.Input, col []float64, texts []string) error {
 	return nil
 }
 
-// SortLevels puts levels in the order an encoder learns them: numerically
+// sortLevels puts levels in the order an encoder learns them: numerically
 // when every level is an integer (ties by text), else by byte order.
-func SortLevels(levels []string) {
+func sortLevels(levels []string) {
 	nums := make(map[string]int64, len(levels))
 	for _, l := range levels {
 		v, err := strconv.ParseInt(l, 10, 64)
