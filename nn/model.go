@@ -6,6 +6,7 @@ import (
 	"math"
 	"slices"
 	"sync"
+	"time"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -55,19 +56,19 @@ type Model struct {
 // Summary records how a model was trained. Figures that do not apply are
 // zero (counts) or NaN (costs and accuracies are written as null).
 type Summary struct {
-	Method          string       `json:"method"`
-	Iterations      int          `json:"iterations"`
-	Evaluations     float64      `json:"evaluations"`
-	Seconds         float64      `json:"seconds"`
-	Status          optim.Status `json:"status"`           // why the run stopped; optim.Running for a checkpoint
-	Cost            float64      `json:"cost"`             // final training cost, with penalty
-	TrainRows       int          `json:"train_rows"`       //
-	TrainAccuracy   float64      `json:"train_accuracy"`   // share of training rows classified right
-	HoldoutRows     int          `json:"holdout_rows"`     // 0 when no holdout was used
-	HoldoutCost     float64      `json:"holdout_cost"`     // mean cross-entropy on the holdout
-	HoldoutAccuracy float64      `json:"holdout_accuracy"` //
-	Seed            uint64       `json:"seed"`             // initialisation seed
-	Library         string       `json:"library"`          // seine version that trained it
+	Method          string        `json:"method"`
+	Iterations      int           `json:"iterations"`
+	Evaluations     float64       `json:"evaluations"`
+	Elapsed         time.Duration `json:"-"`                // wall time of the run; the model file holds it in seconds
+	Status          optim.Status  `json:"status"`           // why the run stopped; optim.Running for a checkpoint
+	Cost            float64       `json:"cost"`             // final training cost, with penalty
+	TrainRows       int           `json:"train_rows"`       //
+	TrainAccuracy   float64       `json:"train_accuracy"`   // share of training rows classified right
+	HoldoutRows     int           `json:"holdout_rows"`     // 0 when no holdout was used
+	HoldoutCost     float64       `json:"holdout_cost"`     // mean cross-entropy on the holdout
+	HoldoutAccuracy float64       `json:"holdout_accuracy"` //
+	Seed            uint64        `json:"seed"`             // initialisation seed
+	Library         string        `json:"library"`          // seine version that trained it
 	// ClassWeights are the per-class factors the cross-entropy was
 	// weighted by (spec train.class_weights), in class order; nil when
 	// unweighted.

@@ -15,6 +15,7 @@ import (
 	"os"
 	"reflect"
 	"strings"
+	"time"
 
 	"github.com/seine-ml/seine/encode"
 	"github.com/seine-ml/seine/internal/atomicfile"
@@ -307,7 +308,19 @@ func parseMissing(w string) (spec.MissingRule, bool) {
 	return 0, false
 }
 
-// fileSummary is Summary with NaN written as null.
+// fileDuration reads the seconds of a model file's summary: to the nearest
+// nanosecond, and 0 for a value that is not a duration (negative, NaN, or
+// beyond time.Duration's 292 years).
+func fileDuration(sec float64) time.Duration {
+	ns := math.Round(sec * float64(time.Second))
+	if !(ns >= 0 && ns < math.MaxInt64) {
+		return 0
+	}
+	return time.Duration(ns)
+}
+
+// fileSummary is Summary with NaN written as null and the elapsed time in
+// seconds.
 type fileSummary struct {
 	Method           string           `json:"method"`
 	Iterations       int              `json:"iterations"`
@@ -374,7 +387,7 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	f.SHA256 = digest(f.Spec, f.Classes, label, f.Encoder, f.Decision, raw)
 	s := m.summary
 	f.Summary = fileSummary{
-		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Seconds, Status: s.Status.String(),
+		Method: s.Method, Iterations: s.Iterations, Evaluations: s.Evaluations, Seconds: s.Elapsed.Seconds(), Status: s.Status.String(),
 		Cost: nullable(s.Cost), TrainRows: s.TrainRows, TrainAccuracy: nullable(s.TrainAccuracy),
 		HoldoutRows: s.HoldoutRows, HoldoutCost: nullable(s.HoldoutCost), HoldoutAccuracy: nullable(s.HoldoutAccuracy),
 		Seed: s.Seed, Library: s.Library,
@@ -382,9 +395,6 @@ func (m *Model) WriteTo(w io.Writer) (int64, error) {
 	}
 	if !finite(f.Summary.Evaluations) {
 		f.Summary.Evaluations = 0
-	}
-	if !finite(f.Summary.Seconds) {
-		f.Summary.Seconds = 0
 	}
 	b, err := json.MarshalIndent(f, "", "  ")
 	if err != nil {
@@ -489,7 +499,7 @@ func ReadModelLimit(r io.Reader, maxBytes int64) (*Model, error) {
 		return nil, fmt.Errorf("%w: summary.status is %q, not a status of a run", ErrFormat, fs.Status)
 	}
 	m.summary = Summary{
-		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Seconds: fs.Seconds, Status: status,
+		Method: fs.Method, Iterations: fs.Iterations, Evaluations: fs.Evaluations, Elapsed: fileDuration(fs.Seconds), Status: status,
 		Cost: fromNullable(fs.Cost), TrainRows: fs.TrainRows, TrainAccuracy: fromNullable(fs.TrainAccuracy),
 		HoldoutRows: fs.HoldoutRows, HoldoutCost: fromNullable(fs.HoldoutCost), HoldoutAccuracy: fromNullable(fs.HoldoutAccuracy),
 		Seed: fs.Seed, Library: fs.Library,

@@ -175,7 +175,7 @@ func (r *run) buildModel(method optim.Method, out optim.Result, params []float64
 		Method:       methodName(method),
 		Iterations:   out.Iterations,
 		Evaluations:  out.Evaluations,
-		Seconds:      time.Since(start).Seconds(),
+		Elapsed:      time.Since(start),
 		Status:       out.Status,
 		Cost:         r.obj.Eval(nil, params),
 		TrainRows:    r.set.Rows(),

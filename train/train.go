@@ -211,7 +211,7 @@ func saveCheckpoint(ck Checkpoint, prep *fit.Prepared, set *data.Set, seed uint6
 	if err := m.SetLabel(set.Label); err != nil {
 		return err
 	}
-	m.SetSummary(nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Seconds: st.Elapsed.Seconds(),
+	m.SetSummary(nn.Summary{Iterations: st.Iter, Evaluations: st.Evaluations, Elapsed: st.Elapsed,
 		Status: optim.Running, Cost: st.Cost, TrainRows: set.Rows(), Seed: seed, Library: nn.Version,
 		TrainAccuracy: math.NaN(), HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(), HoldoutECE: math.NaN(), HoldoutECEBefore: math.NaN()})
 	return ck.Save(m)

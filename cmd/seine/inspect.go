@@ -159,7 +159,7 @@ func optimState(o spec.Optimizer) (string, int) {
 
 func writeModelSummary(w io.Writer, m *nn.Model) {
 	sm := m.Summary()
-	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", safe(sm.Method), sm.Iterations, sm.Evaluations, sm.Seconds, safe(sm.Library))
+	fmt.Fprintf(w, "\n  trained with    %s, %d iterations, %.0f evaluations, %.2fs (seine %s)\n", safe(sm.Method), sm.Iterations, sm.Evaluations, sm.Elapsed.Seconds(), safe(sm.Library))
 	fmt.Fprintf(w, "  stopped         %s\n", safe(stopReason(sm.Status)))
 	fmt.Fprintf(w, "  seed            %d\n", sm.Seed)
 	writeEncoder(w, m.Encoder())

@@ -379,7 +379,7 @@ func training(m *nn.Model) []kv {
 		{"stopped", orDash(sm.Status.String())},
 		{"iterations", strconv.Itoa(sm.Iterations)},
 		{"evaluations", strconv.FormatFloat(sm.Evaluations, 'g', 6, 64)},
-		{"time", fmt.Sprintf("%.2f s", sm.Seconds)},
+		{"time", fmt.Sprintf("%.2f s", sm.Elapsed.Seconds())},
 		{"final cost (with penalty)", num(sm.Cost)},
 		{"training rows", strconv.Itoa(sm.TrainRows)},
 		{"training accuracy", Format("accuracy", ptr(sm.TrainAccuracy))},
