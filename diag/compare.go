@@ -317,8 +317,8 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 // same comparison (methods, seeds, target, rows, batch and warnings; that
 // they come from the same spec, data and settings is for the caller to
 // check). The result equals the whole comparison's, bit for bit, wall
-// times aside. Errors wrap ErrConfig and name the part by its index in
-// parts.
+// times aside. Errors wrap ErrConfig; one that blames a part is a
+// *PartError, which names it by its index in parts.
 func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 	if err := checkShards(parts, func(p *Comparison) Shard { return p.Shard }); err != nil {
 		return nil, err
@@ -331,7 +331,7 @@ func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 		Warnings: slices.Clone(p0.Warnings),
 	}
 	if M == 0 || S == 0 {
-		return nil, fmt.Errorf("%w: part 0 has %d methods and %d seeds", ErrConfig, M, S)
+		return nil, partErrorf(0, "%s has %d methods and %d seeds", partRef(0), M, S)
 	}
 	have := make([]bool, M*S)
 	for i := range c.Runs {
@@ -340,10 +340,10 @@ func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 	for pi, p := range parts {
 		if !slices.Equal(p.Methods, c.Methods) || !slices.Equal(p.Seeds, c.Seeds) || p.Target != c.Target ||
 			p.TrainRows != c.TrainRows || p.HoldoutRows != c.HoldoutRows || p.Batch != c.Batch || !slices.Equal(p.Warnings, c.Warnings) {
-			return nil, fmt.Errorf("%w: part %d is another comparison than part 0 (methods, seeds, target, rows, batch or warnings differ)", ErrConfig, pi)
+			return nil, partErrorf(pi, "%s is another comparison than %s (methods, seeds, target, rows, batch or warnings differ)", partRef(pi), partRef(0))
 		}
 		if len(p.Runs) != M {
-			return nil, fmt.Errorf("%w: part %d has runs of %d methods, want %d", ErrConfig, pi, len(p.Runs), M)
+			return nil, partErrorf(pi, "%s has runs of %d methods, want %d", partRef(pi), len(p.Runs), M)
 		}
 		n := 0
 		for i, runs := range p.Runs {
@@ -351,8 +351,8 @@ func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 				k := slices.Index(c.Seeds, r.Seed)
 				idx := k*M + i
 				if r.Method != c.Methods[i] || k < 0 || !p.Shard.has(idx) || have[idx] {
-					return nil, fmt.Errorf("%w: part %d (shard %s): run of %s from seed %d does not belong there or is given twice",
-						ErrConfig, pi, p.Shard, r.Method, r.Seed)
+					return nil, partErrorf(pi, "%s (shard %s): run of %s from seed %d does not belong there or is given twice",
+						partRef(pi), p.Shard, r.Method, r.Seed)
 				}
 				have[idx] = true
 				c.Runs[i][k] = r
@@ -360,7 +360,7 @@ func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 			}
 		}
 		if want := p.Shard.Count(M * S); n != want {
-			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d runs, want %d", ErrConfig, pi, p.Shard, n, want)
+			return nil, partErrorf(pi, "%s (shard %s) holds %d runs, want %d", partRef(pi), p.Shard, n, want)
 		}
 	}
 	return c.finish(), nil

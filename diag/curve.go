@@ -218,30 +218,30 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 // parts must hold each shard 0 … N−1 of one N exactly once, all of the
 // same curve (steps, holdout rows and baseline; that they come from the
 // same spec, data and settings is for the caller to check). The result
-// equals the whole curve's, bit for bit. Errors wrap ErrConfig and name
-// the part by its index in parts.
+// equals the whole curve's, bit for bit. Errors wrap ErrConfig; one that
+// blames a part is a *PartError, which names it by its index in parts.
 func MergeCurves(parts []*Curve) (*Curve, error) {
 	if err := checkShards(parts, func(p *Curve) Shard { return p.Shard }); err != nil {
 		return nil, err
 	}
 	p0 := parts[0]
 	if p0.Steps < 1 {
-		return nil, fmt.Errorf("%w: part 0: %d steps, want ≥ 1", ErrConfig, p0.Steps)
+		return nil, partErrorf(0, "%s: %d steps, want ≥ 1", partRef(0), p0.Steps)
 	}
 	c := &Curve{HoldoutRows: p0.HoldoutRows, Baseline: p0.Baseline, Steps: p0.Steps, Points: make([]CurvePoint, p0.Steps)}
 	have := make([]bool, c.Steps)
 	for i, p := range parts {
 		if p.Steps != c.Steps || p.HoldoutRows != c.HoldoutRows || math.Float64bits(p.Baseline) != math.Float64bits(c.Baseline) {
-			return nil, fmt.Errorf("%w: part %d is a curve of %d steps, %d holdout rows, baseline %g; part 0 of %d, %d, %g",
-				ErrConfig, i, p.Steps, p.HoldoutRows, p.Baseline, c.Steps, c.HoldoutRows, c.Baseline)
+			return nil, partErrorf(i, "%s is a curve of %d steps, %d holdout rows, baseline %g; %s of %d, %d, %g",
+				partRef(i), p.Steps, p.HoldoutRows, p.Baseline, partRef(0), c.Steps, c.HoldoutRows, c.Baseline)
 		}
 		if len(p.Points) != p.Shard.Count(p.Steps) {
-			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d points, want %d", ErrConfig, i, p.Shard, len(p.Points), p.Shard.Count(p.Steps))
+			return nil, partErrorf(i, "%s (shard %s) holds %d points, want %d", partRef(i), p.Shard, len(p.Points), p.Shard.Count(p.Steps))
 		}
 		for _, pt := range p.Points {
 			j := pt.Step - 1
 			if j < 0 || j >= c.Steps || !p.Shard.has(j) || have[j] {
-				return nil, fmt.Errorf("%w: part %d (shard %s): step %d does not belong there or is given twice", ErrConfig, i, p.Shard, pt.Step)
+				return nil, partErrorf(i, "%s (shard %s): step %d does not belong there or is given twice", partRef(i), p.Shard, pt.Step)
 			}
 			have[j] = true
 			c.Points[j] = pt

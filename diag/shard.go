@@ -2,6 +2,7 @@ package diag
 
 import (
 	"fmt"
+	"slices"
 	"time"
 )
 
@@ -77,12 +78,63 @@ type FitDone struct {
 	Elapsed time.Duration
 }
 
+// PartError is an error of MergeSweeps, MergeCurves or MergeComparisons
+// that blames one of the parts: Part is its index in the parts given. Its
+// message, which starts with ErrConfig's, calls that part, and any other
+// it is compared with, "part i"; Named gives the same message with the
+// parts called what the caller likes, such as the files they were read
+// from. The merge functions return it as it is, not wrapped, so Named is
+// the whole message:
+//
+//	var pe *diag.PartError
+//	if errors.As(err, &pe) {
+//		fmt.Println(pe.Named(func(i int) string { return files[i] }))
+//	}
+//
+// It wraps ErrConfig.
+type PartError struct {
+	Part int
+
+	format string
+	args   []any // a partRef is a part, named by Named
+}
+
+// partRef is a part mentioned in a PartError's message, by its index.
+type partRef int
+
+// partErrorf returns a PartError that blames part i; format and args are
+// its message after ErrConfig's, with a partRef (formatted with %s) for
+// each part it mentions.
+func partErrorf(i int, format string, args ...any) *PartError {
+	return &PartError{Part: i, format: format, args: args}
+}
+
+// Error returns the message with the parts called "part i".
+func (e *PartError) Error() string {
+	return e.Named(func(i int) string { return fmt.Sprintf("part %d", i) })
+}
+
+// Named returns the message with each part it mentions called name(i), i
+// its index in the parts given, instead of "part i".
+func (e *PartError) Named(name func(i int) string) string {
+	args := slices.Clone(e.args)
+	for j, a := range args {
+		if r, ok := a.(partRef); ok {
+			args[j] = name(int(r))
+		}
+	}
+	return fmt.Sprintf("%v: %s", ErrConfig, fmt.Sprintf(e.format, args...))
+}
+
+// Unwrap returns ErrConfig.
+func (e *PartError) Unwrap() error { return ErrConfig }
+
 // checkShards checks that parts, none nil and one per shard of the same
 // N, hold each shard 0 … N−1 exactly once; shard returns a part's Shard.
 func checkShards[T any](parts []*T, shard func(*T) Shard) error {
 	for i, p := range parts {
 		if p == nil {
-			return fmt.Errorf("%w: part %d is nil", ErrConfig, i)
+			return partErrorf(i, "%s is nil", partRef(i))
 		}
 	}
 	if len(parts) == 0 {
@@ -94,13 +146,13 @@ func checkShards[T any](parts []*T, shard func(*T) Shard) error {
 		s := shard(p)
 		switch {
 		case s.Whole():
-			return fmt.Errorf("%w: part %d is a whole run, not a shard", ErrConfig, i)
+			return partErrorf(i, "%s is a whole run, not a shard", partRef(i))
 		case s.N != N:
-			return fmt.Errorf("%w: part %d is shard %s, part 0 is one of %d", ErrConfig, i, s, N)
+			return partErrorf(i, "%s is shard %s, %s is one of %d", partRef(i), s, partRef(0), N)
 		case s.check() != nil:
-			return fmt.Errorf("%w: part %d: shard %s, want 0 ≤ K < N", ErrConfig, i, s)
+			return partErrorf(i, "%s: shard %s, want 0 ≤ K < N", partRef(i), s)
 		case seen[s.K] > 0:
-			return fmt.Errorf("%w: part %d is shard %s, as is part %d", ErrConfig, i, s, seen[s.K]-1)
+			return partErrorf(i, "%s is shard %s, as is %s", partRef(i), s, partRef(seen[s.K]-1))
 		}
 		seen[s.K] = i + 1
 	}

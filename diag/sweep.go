@@ -292,31 +292,31 @@ func (sw *Sweep) summarise() {
 // hold each shard 0 … N−1 of one N exactly once, all of the same sweep
 // (parameter, folds, holdout and size; that they come from the same spec,
 // data and settings is for the caller to check). The result equals the
-// whole sweep's, bit for bit. Errors wrap ErrConfig and name the part by
-// its index in parts.
+// whole sweep's, bit for bit. Errors wrap ErrConfig; one that blames a
+// part is a *PartError, which names it by its index in parts.
 func MergeSweeps(parts []*Sweep) (*Sweep, error) {
 	if err := checkShards(parts, func(p *Sweep) Shard { return p.Shard }); err != nil {
 		return nil, err
 	}
 	p0 := parts[0]
 	if p0.Folds < 1 || p0.Size < 0 || p0.Size%p0.Folds != 0 {
-		return nil, fmt.Errorf("%w: part 0: %d fits in folds of %d", ErrConfig, p0.Size, p0.Folds)
+		return nil, partErrorf(0, "%s: %d fits in folds of %d", partRef(0), p0.Size, p0.Folds)
 	}
 	sw := &Sweep{Param: p0.Param, Folds: p0.Folds, Holdout: p0.Holdout, Size: p0.Size, Fits: make([]SweepFit, p0.Size)}
 	have := make([]bool, p0.Size)
 	for i, p := range parts {
 		if p.Param != sw.Param || p.Folds != sw.Folds || p.Holdout != sw.Holdout || p.Size != sw.Size {
-			return nil, fmt.Errorf("%w: part %d is a sweep of %s over %d fits (%d folds, holdout %g), part 0 of %s over %d (%d folds, holdout %g)",
-				ErrConfig, i, p.Param, p.Size, p.Folds, p.Holdout, sw.Param, sw.Size, sw.Folds, sw.Holdout)
+			return nil, partErrorf(i, "%s is a sweep of %s over %d fits (%d folds, holdout %g), %s of %s over %d (%d folds, holdout %g)",
+				partRef(i), p.Param, p.Size, p.Folds, p.Holdout, partRef(0), sw.Param, sw.Size, sw.Folds, sw.Holdout)
 		}
 		if len(p.Fits) != p.Shard.Count(p.Size) {
-			return nil, fmt.Errorf("%w: part %d (shard %s) holds %d fits, want %d", ErrConfig, i, p.Shard, len(p.Fits), p.Shard.Count(p.Size))
+			return nil, partErrorf(i, "%s (shard %s) holds %d fits, want %d", partRef(i), p.Shard, len(p.Fits), p.Shard.Count(p.Size))
 		}
 		for _, f := range p.Fits {
 			if f.Index < 0 || f.Index >= sw.Size || !p.Shard.has(f.Index) || have[f.Index] ||
 				f.Value != f.Index/sw.Folds || f.Fold != f.Index%sw.Folds {
-				return nil, fmt.Errorf("%w: part %d (shard %s): fit %d (value %d, fold %d) does not belong there or is given twice",
-					ErrConfig, i, p.Shard, f.Index, f.Value, f.Fold)
+				return nil, partErrorf(i, "%s (shard %s): fit %d (value %d, fold %d) does not belong there or is given twice",
+					partRef(i), p.Shard, f.Index, f.Value, f.Fold)
 			}
 			have[f.Index] = true
 			sw.Fits[f.Index] = f

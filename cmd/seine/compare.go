@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -69,156 +70,228 @@ func (m *multiFlag) Set(v string) error { *m = append(*m, v); return nil }
 // problemPaths is one spec and data file pair.
 type problemPaths struct{ spec, data string }
 
+// runCompare checks the flags, runs the comparison of every problem (or,
+// with -shard, the shard's part of it) and reports them (or writes the
+// part).
 func runCompare(ctx context.Context, e *env, args []string) error {
-	fs := newFlags("compare", e)
-	comma := commaFlag(fs)
-	var specs, datas multiFlag
-	fs.Var(&specs, "spec", "spec `FILE` (YAML); repeat with -data for several problems")
-	fs.Var(&datas, "data", "labelled CSV `FILE`; one per -spec, in the same order")
-	problems := fs.String("problems", "", "text `FILE` of \"SPEC DATA\" path pairs, one per line")
-	label := labelFlag(fs, false)
-	optimizers := fs.String("optimizers", "gd,cg,lbfgs,momentum,adam", "comma-separated `LIST` of methods")
-	iterations := iterationsFlag(fs)
-	evaluations := fs.Float64("evaluations", 0, "evaluation limit of every run; 0 means none")
-	seeds := fs.Int("seeds", 1, "number `K` of initialisation seeds")
-	seed := fs.Uint64("seed", 0, "first initialisation seed (default the spec's init.seed)")
-	holdout := fs.Float64("holdout", 0, "fraction of rows in [0, 1) kept out and scored after every iteration")
-	batch := fs.Int("batch", 0, "mini-batch rows of momentum and adam (default the spec's train.batch, else 32)")
-	target := fs.Float64("target", diag.DefaultTarget, "target cost: within this fraction of the best cost of each seed")
-	standardize := standardizeFlag(fs)
-	asJSON := jsonFlag(fs, "the table")
-	plot := plotFileFlag(fs, "cost curves (one problem) or performance profiles (several)")
-	trace := fs.String("trace", "", "write every iteration of every run to `FILE`.csv")
-	quiet := quietFlag(fs)
-	so := addShardFlags(fs)
-	if err := parseFlags(fs, args); err != nil {
+	f := newCompareFlags(e)
+	if err := parseFlags(f.fs, args); err != nil {
 		return err
 	}
-	var pairs []problemPaths
-	switch {
-	case *problems != "" && (len(specs) > 0 || len(datas) > 0):
-		return usagef("give either -problems or -spec and -data, not both")
-	case *problems != "":
-		var err error
-		if pairs, err = readProblems(*problems); err != nil {
-			return err
-		}
-	default:
-		if len(specs) == 0 {
-			return usagef("-spec is required")
-		}
-		if len(datas) == 0 {
-			return usagef("-data is required")
-		}
-		if len(specs) != len(datas) {
-			return usagef("%d -spec and %d -data flags: give them in pairs", len(specs), len(datas))
-		}
-		for i := range specs {
-			pairs = append(pairs, problemPaths{specs[i], datas[i]})
-		}
-	}
-	opts, err := parseOptimizers(*optimizers)
+	pairs, err := f.problemPaths()
 	if err != nil {
 		return err
 	}
-	switch {
-	case *iterations < 0:
-		return usagef("-iterations %d: want ≥ 0", *iterations)
-	case !(*evaluations >= 0) || math.IsInf(*evaluations, 1):
-		return usagef("-evaluations %g: want a number ≥ 0", *evaluations)
-	case *seeds < 1:
-		return usagef("-seeds %d: want ≥ 1", *seeds)
-	case !(*holdout >= 0 && *holdout < 1):
-		return usagef("-holdout %g: want a fraction in [0, 1)", *holdout)
-	case *batch < 0:
-		return usagef("-batch %d: want ≥ 0", *batch)
-	case !(*target > 0) || math.IsInf(*target, 1):
-		return usagef("-target %g: want a fraction > 0", *target)
+	cfg, err := f.config()
+	if err != nil {
+		return err
 	}
+	out, err := f.outputs(pairs)
+	if err != nil {
+		return err
+	}
+	names := make([]string, len(pairs))
+	comps := make([]*diag.Comparison, len(pairs))
+	var pps []partProblem
+	for i, p := range pairs {
+		var pp partProblem
+		if names[i], comps[i], pp, err = compareProblem(ctx, e, f, cfg, p, i, len(pairs)); err != nil {
+			return err
+		}
+		if f.so.on() {
+			pps = append(pps, pp)
+		}
+	}
+	if f.so.on() {
+		return writeComparePart(e, f, cfg.Optimizers, pps, comps)
+	}
+	return reportComparisons(e, names, comps, out)
+}
+
+// compareFlags are the flags of compare.
+type compareFlags struct {
+	fs           *flag.FlagSet
+	comma        *commaValue
+	specs, datas multiFlag
+	problems     *string
+	label        *string
+	optimizers   *string
+	iterations   *int
+	evaluations  *float64
+	seeds        *int
+	seed         *uint64
+	holdout      *float64
+	batch        *int
+	target       *float64
+	standardize  *bool
+	asJSON       *bool
+	plot         *string
+	trace        *string
+	quiet        *bool
+	so           *shardOpts
+}
+
+// newCompareFlags defines the flags of compare.
+func newCompareFlags(e *env) *compareFlags {
+	fs := newFlags("compare", e)
+	f := &compareFlags{fs: fs}
+	f.comma = commaFlag(fs)
+	fs.Var(&f.specs, "spec", "spec `FILE` (YAML); repeat with -data for several problems")
+	fs.Var(&f.datas, "data", "labelled CSV `FILE`; one per -spec, in the same order")
+	f.problems = fs.String("problems", "", "text `FILE` of \"SPEC DATA\" path pairs, one per line")
+	f.label = labelFlag(fs, false)
+	f.optimizers = fs.String("optimizers", "gd,cg,lbfgs,momentum,adam", "comma-separated `LIST` of methods")
+	f.iterations = iterationsFlag(fs)
+	f.evaluations = fs.Float64("evaluations", 0, "evaluation limit of every run; 0 means none")
+	f.seeds = fs.Int("seeds", 1, "number `K` of initialisation seeds")
+	f.seed = fs.Uint64("seed", 0, "first initialisation seed (default the spec's init.seed)")
+	f.holdout = fs.Float64("holdout", 0, "fraction of rows in [0, 1) kept out and scored after every iteration")
+	f.batch = fs.Int("batch", 0, "mini-batch rows of momentum and adam (default the spec's train.batch, else 32)")
+	f.target = fs.Float64("target", diag.DefaultTarget, "target cost: within this fraction of the best cost of each seed")
+	f.standardize = standardizeFlag(fs)
+	f.asJSON = jsonFlag(fs, "the table")
+	f.plot = plotFileFlag(fs, "cost curves (one problem) or performance profiles (several)")
+	f.trace = fs.String("trace", "", "write every iteration of every run to `FILE`.csv")
+	f.quiet = quietFlag(fs)
+	f.so = addShardFlags(fs)
+	return f
+}
+
+// problemPaths returns the spec and data files of the problems: those of
+// -problems, or the -spec and -data pairs.
+func (f *compareFlags) problemPaths() ([]problemPaths, error) {
+	switch {
+	case *f.problems != "" && (len(f.specs) > 0 || len(f.datas) > 0):
+		return nil, usagef("give either -problems or -spec and -data, not both")
+	case *f.problems != "":
+		return readProblems(*f.problems)
+	case len(f.specs) == 0:
+		return nil, usagef("-spec is required")
+	case len(f.datas) == 0:
+		return nil, usagef("-data is required")
+	case len(f.specs) != len(f.datas):
+		return nil, usagef("%d -spec and %d -data flags: give them in pairs", len(f.specs), len(f.datas))
+	}
+	var pairs []problemPaths
+	for i := range f.specs {
+		pairs = append(pairs, problemPaths{f.specs[i], f.datas[i]})
+	}
+	return pairs, nil
+}
+
+// config checks the flags that shape the runs and returns them as the
+// config of every problem (without its Progress and Shard).
+func (f *compareFlags) config() (diag.CompareConfig, error) {
+	opts, err := parseOptimizers(*f.optimizers)
+	if err != nil {
+		return diag.CompareConfig{}, err
+	}
+	switch {
+	case *f.iterations < 0:
+		return diag.CompareConfig{}, usagef("-iterations %d: want ≥ 0", *f.iterations)
+	case !(*f.evaluations >= 0) || math.IsInf(*f.evaluations, 1):
+		return diag.CompareConfig{}, usagef("-evaluations %g: want a number ≥ 0", *f.evaluations)
+	case *f.seeds < 1:
+		return diag.CompareConfig{}, usagef("-seeds %d: want ≥ 1", *f.seeds)
+	case !(*f.holdout >= 0 && *f.holdout < 1):
+		return diag.CompareConfig{}, usagef("-holdout %g: want a fraction in [0, 1)", *f.holdout)
+	case *f.batch < 0:
+		return diag.CompareConfig{}, usagef("-batch %d: want ≥ 0", *f.batch)
+	case !(*f.target > 0) || math.IsInf(*f.target, 1):
+		return diag.CompareConfig{}, usagef("-target %g: want a fraction > 0", *f.target)
+	}
+	return diag.CompareConfig{
+		Optimizers: opts,
+		Limits:     optim.Limits{Iterations: *f.iterations, Evaluations: *f.evaluations},
+		Batch:      *f.batch,
+		Seeds:      *f.seeds,
+		Seed:       *f.seed,
+		Holdout:    *f.holdout,
+		Target:     *f.target,
+		NoScale:    !*f.standardize,
+	}, nil
+}
+
+// outputs checks -plot, -trace, -shard and -out: that they go together and
+// name none of the problems' files.
+func (f *compareFlags) outputs(pairs []problemPaths) (outputs, error) {
 	var inputs []string
 	for _, p := range pairs {
 		inputs = append(inputs, "spec", p.spec, "data", p.data)
 	}
-	plotFormat, err := plotFlag("-plot", *plot, inputs...)
+	plotFormat, err := plotFlag("-plot", *f.plot, inputs...)
 	if err != nil {
-		return err
+		return outputs{}, err
 	}
-	if err := so.check(os.Getenv, *plot, *trace, inputs...); err != nil {
-		return err
+	if err := f.so.check(os.Getenv, *f.plot, *f.trace, inputs...); err != nil {
+		return outputs{}, err
 	}
-	if *trace != "" {
-		if err := refuseOverwrite("-trace", *trace, inputs...); err != nil {
-			return err
+	if *f.trace != "" {
+		if err := refuseOverwrite("-trace", *f.trace, inputs...); err != nil {
+			return outputs{}, err
 		}
-		if err := checkWritable("-trace", *trace); err != nil {
-			return err
+		if err := checkWritable("-trace", *f.trace); err != nil {
+			return outputs{}, err
 		}
 	}
+	return outputs{json: *f.asJSON, plot: *f.plot, format: plotFormat, trace: *f.trace}, nil
+}
 
-	cfg := diag.CompareConfig{
-		Optimizers: opts,
-		Limits:     optim.Limits{Iterations: *iterations, Evaluations: *evaluations},
-		Batch:      *batch,
-		Seeds:      *seeds,
-		Seed:       *seed,
-		Holdout:    *holdout,
-		Target:     *target,
-		NoScale:    !*standardize,
+// compareProblem loads problem i of n and runs its comparison (or, with
+// -shard, the shard's part of it), reporting progress and warnings on
+// standard error. It returns the problem's name, the comparison and, with
+// -shard, the problem as the part describes it.
+func compareProblem(ctx context.Context, e *env, f *compareFlags, cfg diag.CompareConfig, p problemPaths, i, n int) (string, *diag.Comparison, partProblem, error) {
+	s, err := loadSpec(ctx, p.spec)
+	if err != nil {
+		return "", nil, partProblem{}, err
 	}
-	comps := make([]*diag.Comparison, len(pairs))
-	names := make([]string, len(pairs))
-	var pps []partProblem
-	for i, p := range pairs {
-		s, err := loadSpec(ctx, p.spec)
-		if err != nil {
-			return err
-		}
-		set, err := loadData(ctx, p.data, withComma(dataFor(s, *label), comma))
-		if err != nil {
-			return err
-		}
-		names[i] = problemName(s, p.data)
-		pr := progressFor(e, *quiet, "compare", func(f diag.FitDone) string { return fmt.Sprintf("%s, seed %d", f.Method, f.Seed) })
-		if len(pairs) > 1 {
-			pr.note("compare: problem %d of %d: %s", i+1, len(pairs), names[i])
-			pr.prefix = fmt.Sprintf("problem %d/%d: ", i+1, len(pairs))
-		}
-		c := cfg
-		c.Progress = pr.fit
-		if so.on() {
-			c.Shard = problemShard(so.shard, i, len(opts)*cfg.Seeds)
-		}
-		comp, err := diag.Compare(ctx, s, set, c)
-		pr.done()
-		if err != nil {
-			return fmt.Errorf("%s: %w", names[i], err)
-		}
-		for _, w := range comp.Warnings {
-			fmt.Fprintf(e.stderr, "compare: %s: warning: %s\n", names[i], w)
-		}
-		comps[i] = comp
-		if so.on() {
-			pp, err := describeProblem(ctx, names[i], s, p.data, set.Rows())
-			if err != nil {
-				return err
-			}
-			pps = append(pps, pp)
-		}
+	set, err := loadData(ctx, p.data, withComma(dataFor(s, *f.label), f.comma))
+	if err != nil {
+		return "", nil, partProblem{}, err
 	}
-	if so.on() {
-		settings := settingsOf(fs)
-		names := make([]string, len(opts))
-		for i, o := range opts {
-			names[i] = o.String()
-		}
-		settings["optimizers"] = strings.Join(names, ",")
-		pt := &part{Command: "compare", Problems: pps, Settings: settings}
-		for _, c := range comps {
-			pt.Compare = append(pt.Compare, toComparePart(c))
-		}
-		return writePart(e, so, pt)
+	name := problemName(s, p.data)
+	pr := progressFor(e, *f.quiet, "compare", func(d diag.FitDone) string { return fmt.Sprintf("%s, seed %d", d.Method, d.Seed) })
+	if n > 1 {
+		pr.note("compare: problem %d of %d: %s", i+1, n, name)
+		pr.prefix = fmt.Sprintf("problem %d/%d: ", i+1, n)
 	}
-	return reportComparisons(e, names, comps, outputs{json: *asJSON, plot: *plot, format: plotFormat, trace: *trace})
+	cfg.Progress = pr.fit
+	if f.so.on() {
+		cfg.Shard = problemShard(f.so.shard, i, len(cfg.Optimizers)*cfg.Seeds)
+	}
+	comp, err := diag.Compare(ctx, s, set, cfg)
+	pr.done()
+	if err != nil {
+		return "", nil, partProblem{}, fmt.Errorf("%s: %w", name, err)
+	}
+	for _, w := range comp.Warnings {
+		fmt.Fprintf(e.stderr, "compare: %s: warning: %s\n", name, w)
+	}
+	if !f.so.on() {
+		return name, comp, partProblem{}, nil
+	}
+	pp, err := describeProblem(ctx, name, s, p.data, set.Rows())
+	if err != nil {
+		return "", nil, partProblem{}, err
+	}
+	return name, comp, pp, nil
+}
+
+// writeComparePart writes the part of a shard: the problems pps, their
+// comparisons comps and the settings, with -optimizers as opts.
+func writeComparePart(e *env, f *compareFlags, opts []spec.Optimizer, pps []partProblem, comps []*diag.Comparison) error {
+	settings := settingsOf(f.fs)
+	methods := make([]string, len(opts))
+	for i, o := range opts {
+		methods[i] = o.String()
+	}
+	settings["optimizers"] = strings.Join(methods, ",")
+	pt := &part{Command: "compare", Problems: pps, Settings: settings}
+	for _, c := range comps {
+		pt.Compare = append(pt.Compare, toComparePart(c))
+	}
+	return writePart(e, f.so, pt)
 }
 
 // reportComparisons writes the tables or JSON, the profiles, the trace and

@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -666,14 +667,15 @@ func runMerge(ctx context.Context, e *env, args []string) error {
 	return reportComparisons(e, names, comps, o)
 }
 
-// mergeError names the part file of a diag merge error ("part 3: ...").
+// mergeError calls the parts that a diag merge error blames or mentions
+// (a diag.PartError) by their files, paths[i] for part i; other errors are
+// returned as they are.
 func mergeError(paths []string, err error) error {
-	msg := err.Error()
-	for i := len(paths) - 1; i >= 0; i-- {
-		msg = strings.ReplaceAll(msg, fmt.Sprintf("part %d ", i), paths[i]+" ")
-		msg = strings.ReplaceAll(msg, fmt.Sprintf("part %d:", i), paths[i]+":")
+	var pe *diag.PartError
+	if !errors.As(err, &pe) {
+		return err
 	}
-	return &wrapped{msg: msg, err: err}
+	return &wrapped{msg: pe.Named(func(i int) string { return paths[i] }), err: err}
 }
 
 // checkParts refuses parts of different runs, and a shard missing or given
