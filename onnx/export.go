@@ -341,11 +341,19 @@ func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 	L := net.NumLayers()
 	T := m.Decision().Temperature
 	a := units
+	s := m.Spec()
+	var params []float64 // a copy of the model's: taken only when values are written
+	if !b.shapeOnly {
+		params = m.Params()
+	}
 	for l := 0; l < L; l++ {
 		w, bo := net.Block(l)
 		nin, nout := sizes[l], sizes[l+1]
 		layer := strconv.Itoa(l + 1)
-		wv, bv := m.Params()[w:w+nout*nin], m.Params()[bo:bo+nout]
+		var wv, bv []float64
+		if params != nil {
+			wv, bv = params[w:w+nout*nin], params[bo:bo+nout]
+		}
 		if l == L-1 && T != 0 && T != 1 {
 			// Temperature scaling folded into the output layer as nn
 			// does it: g((W a + b)/T) computed as g((W/T) a + b/T), each
@@ -366,11 +374,11 @@ func netGraph(b *graph, m *nn.Model, net *nn.Net, units string) error {
 			break
 		}
 		var err error
-		if a, err = hidden(b, m.Spec().Hidden[l].Activation, z, "a"+layer); err != nil {
+		if a, err = hidden(b, s.Hidden[l].Activation, z, "a"+layer); err != nil {
 			return unsupported("hidden layer %d: %v", l+1, err)
 		}
 	}
-	out := m.Spec().Output
+	out := s.Output
 	K := len(m.Classes())
 	th := m.Decision().Thresholds
 	binary := out.Activation == spec.Sigmoid && out.Units() == 1 && K == 2

@@ -33,7 +33,7 @@ func fitWarnings(m *nn.Model, set, hold *data.Set, run optim.Result) []string {
 			out = append(out, fmt.Sprintf("class %q has only %d training rows", set.Classes[k], n))
 		}
 	}
-	if p, r := len(m.Params()), set.Rows(); p > r {
+	if p, r := m.Net().NumParams(), set.Rows(); p > r {
 		out = append(out, fmt.Sprintf("the net has %d params for %d training rows: expect it to fit noise; raise the penalty (l2), shrink the net or add rows", p, r))
 	}
 	if run.Status == optim.IterationLimit && len(run.Trace) > 0 {

@@ -401,7 +401,7 @@ func writeTrainSummary(w io.Writer, out string, res *train.Result, hasHold, keep
 	} else {
 		row("rows", "%d training, no holdout", sm.TrainRows)
 	}
-	row("net", "%s, %d params", netShape(m.Spec()), len(m.Params()))
+	row("net", "%s, %d params", netShape(m.Spec()), m.Net().NumParams())
 	row("method", "%s, %d iterations, %.0f evaluations, %.2fs", sm.Method, sm.Iterations, sm.Evaluations, sm.Elapsed.Seconds())
 	row("stopped", "%s", stopReason(sm.Status))
 	row("final cost", "%.6g (training rows, penalty included)", sm.Cost)

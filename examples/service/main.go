@@ -241,7 +241,7 @@ func (s *server) healthz(w http.ResponseWriter, r *http.Request) {
 		"classes":  m.Classes(),
 		"features": m.Features(),
 		"inputs":   inputs,
-		"params":   len(m.Params()),
+		"params":   m.Net().NumParams(),
 	})
 }
 
@@ -265,7 +265,7 @@ func (s *server) reload(w http.ResponseWriter, r *http.Request) {
 	}
 	s.model.Store(sv)
 	s.logger.Printf("reloaded %s", s.modelPath)
-	writeJSON(w, http.StatusOK, map[string]any{"status": "reloaded", "params": len(m.Params())})
+	writeJSON(w, http.StatusOK, map[string]any{"status": "reloaded", "params": m.Net().NumParams()})
 }
 
 func writeError(w http.ResponseWriter, status int, field, msg string) {

@@ -54,7 +54,7 @@ func run(ctx context.Context, w io.Writer, specPath, dataPath, out string) error
 		return err
 	}
 	sum := m.Summary()
-	fmt.Fprintf(w, "wrote %s: %d params, %s %d iterations (%s)\n", out, len(m.Params()), sum.Method, sum.Iterations, sum.Status)
+	fmt.Fprintf(w, "wrote %s: %d params, %s %d iterations (%s)\n", out, m.Net().NumParams(), sum.Method, sum.Iterations, sum.Status)
 	fmt.Fprintf(w, "training rows %d: accuracy %.3f\n", sum.TrainRows, sum.TrainAccuracy)
 	fmt.Fprintf(w, "holdout rows %d: accuracy %.3f, cross-entropy %.3f\n", fit.Report.Rows, fit.Report.Accuracy, fit.Report.CrossEntropy)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
