@@ -12,10 +12,12 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// textMatch finds code that recognises an error by its text: a comparison
-// or search on the result of Error(). Errors are recognised by type or
+// textMatch finds code that recognises an error by its text: a comparison,
+// search or rewrite of the result of Error() (or of a variable holding it,
+// by the names the tree used: msg, detail, text). Indenting a message's
+// lines for display is not recognition, and is allowed. Errors are recognised by type or
 // sentinel (errors.Is, errors.As) everywhere (issue 14).
-var textMatch = regexp.MustCompile(`(strings\.(Contains|HasPrefix|HasSuffix|Index|EqualFold)|\.(Find[A-Za-z]*|Match[A-Za-z]*))\([^)]*\.Error\(\)|\.Error\(\) *(==|!=)|strings\.(Contains|Index)\((msg|detail|text), `)
+var textMatch = regexp.MustCompile(`(strings\.(Contains|HasPrefix|HasSuffix|Index|EqualFold|Cut|CutPrefix|TrimPrefix)|\.(Find[A-Za-z]*|Match[A-Za-z]*))\([^)]*\.Error\(\)|\.Error\(\) *(==|!=)|strings\.(Contains|Index)\((msg|detail|text), |strings\.(Replace|ReplaceAll|Cut|CutPrefix|TrimPrefix)\((msg|detail), `)
 
 // allowed lists the files that may read an error's text, with why.
 var allowed = map[string]string{
@@ -73,7 +75,10 @@ func TestLintCatches(t *testing.T) {
 		{"strings.Index on detail", `if i := strings.Index(detail, optim.ErrDiverged.Error()+": "); i >= 0 {`, true},
 		{"strings.Contains on msg", `if strings.Contains(msg, "refusing to build a model") {`, true},
 		{"regexp on Error()", `m := regexp.MustCompile("x").FindString(err.Error())`, true},
+		{"rewrite of msg", `msg = strings.ReplaceAll(msg, fmt.Sprintf("part %d ", i), paths[i]+" ")`, true},
+		{"cut of Error()", `_, rest, ok := strings.Cut(err.Error(), ": ")`, true},
 		{"errors.Is", `if errors.Is(err, ErrX) {`, false},
+		{"indenting for display", `return strings.ReplaceAll(strings.TrimRight(err.Error(), "\n"), "\n", "\n  ")`, false},
 		{"Error() printed", `fmt.Fprintln(w, err.Error())`, false},
 	}
 	for _, tt := range tests {
