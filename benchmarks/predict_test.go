@@ -57,7 +57,7 @@ func triageModel(b *testing.B) (*nn.Model, []byte, *mat.Dense) {
 			triage.err = err
 			return
 		}
-		res, err := train.Train(context.Background(), s, set, train.Config{Limits: optim.Limits{Iterations: 5}})
+		res, err := train.Train(context.Background(), s, set, train.Options{Limits: optim.Limits{Iterations: 5}})
 		if err != nil {
 			triage.err = err
 			return

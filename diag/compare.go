@@ -18,16 +18,16 @@ import (
 	"github.com/seine-ml/seine/train"
 )
 
-// ErrConfig is wrapped by errors in a CompareConfig, SweepConfig or
-// CurveConfig, or in how it fits the spec and data.
-var ErrConfig = errors.New("diag: bad configuration")
+// ErrOptions is wrapped by errors in a CompareOptions, SweepOptions or
+// CurveOptions, or in how it fits the spec and data.
+var ErrOptions = errors.New("diag: bad configuration")
 
 // DefaultBatch is the mini-batch size, in rows, that Compare gives momentum
 // and Adam when neither the config nor the spec's train.batch sets one
 // (common practice: small powers of two).
 const DefaultBatch = train.DefaultBatch
 
-// DefaultTarget is the default of CompareConfig.Target: a run reaches the
+// DefaultTarget is the default of CompareOptions.Target: a run reaches the
 // target when its cost is within 1% of the best cost of its seed.
 const DefaultTarget = 0.01
 
@@ -39,10 +39,10 @@ type Contender struct {
 	Method optim.Method
 }
 
-// CompareConfig sets an optimizer comparison. Its zero value compares the
+// CompareOptions sets an optimizer comparison. Its zero value compares the
 // five methods of spec.Optimizer on all rows, from one seed, with the
 // spec's iteration limit.
-type CompareConfig struct {
+type CompareOptions struct {
 	// Optimizers are the methods to compare by name; for each seed each
 	// gets a fresh method, as training would build it, with the spec's
 	// train.rate and the seed (which seeds the shuffles of momentum and
@@ -199,9 +199,9 @@ type Comparison struct {
 //
 // The runs are enumerated seed × method: run i = k·M + j is method j (of
 // M, in table order) from seed k. cfg.Shard selects a part of them.
-func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareConfig) (*Comparison, error) {
+func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareOptions) (*Comparison, error) {
 	if s == nil || set == nil {
-		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
+		return nil, fmt.Errorf("%w: nil spec or data set", ErrOptions)
 	}
 	if err := checkCompareConfig(&cfg); err != nil {
 		return nil, err
@@ -317,7 +317,7 @@ func Compare(ctx context.Context, s *spec.Network, set *data.Set, cfg CompareCon
 // same comparison (methods, seeds, target, rows, batch and warnings; that
 // they come from the same spec, data and settings is for the caller to
 // check). The result equals the whole comparison's, bit for bit, wall
-// times aside. Errors wrap ErrConfig; one that blames a part is a
+// times aside. Errors wrap ErrOptions; one that blames a part is a
 // *PartError, which names it by its index in parts.
 func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 	if err := checkShards(parts, func(p *Comparison) Shard { return p.Shard }); err != nil {
@@ -366,18 +366,18 @@ func MergeComparisons(parts []*Comparison) (*Comparison, error) {
 	return c.finish(), nil
 }
 
-func checkCompareConfig(cfg *CompareConfig) error {
+func checkCompareConfig(cfg *CompareOptions) error {
 	switch {
 	case cfg.Seeds < 0:
-		return fmt.Errorf("%w: Seeds = %d, want ≥ 0", ErrConfig, cfg.Seeds)
+		return fmt.Errorf("%w: Seeds = %d, want ≥ 0", ErrOptions, cfg.Seeds)
 	case cfg.Batch < 0:
-		return fmt.Errorf("%w: Batch = %d, want ≥ 0", ErrConfig, cfg.Batch)
+		return fmt.Errorf("%w: Batch = %d, want ≥ 0", ErrOptions, cfg.Batch)
 	case cfg.Workers < 0:
-		return fmt.Errorf("%w: Workers = %d, want ≥ 0", ErrConfig, cfg.Workers)
+		return fmt.Errorf("%w: Workers = %d, want ≥ 0", ErrOptions, cfg.Workers)
 	case !(cfg.Holdout >= 0 && cfg.Holdout < 1):
-		return fmt.Errorf("%w: Holdout = %g, want a fraction in [0, 1)", ErrConfig, cfg.Holdout)
+		return fmt.Errorf("%w: Holdout = %g, want a fraction in [0, 1)", ErrOptions, cfg.Holdout)
 	case !(cfg.Target >= 0) || math.IsInf(cfg.Target, 1):
-		return fmt.Errorf("%w: Target = %g, want a finite fraction ≥ 0", ErrConfig, cfg.Target)
+		return fmt.Errorf("%w: Target = %g, want a finite fraction ≥ 0", ErrOptions, cfg.Target)
 	}
 	if cfg.Seeds == 0 {
 		cfg.Seeds = 1
@@ -393,26 +393,26 @@ func checkCompareConfig(cfg *CompareConfig) error {
 
 // contenderNames lists the table names of cfg's methods and checks that
 // they are distinct and known.
-func contenderNames(cfg CompareConfig) ([]string, error) {
+func contenderNames(cfg CompareOptions) ([]string, error) {
 	var names []string
 	for i, o := range cfg.Optimizers {
 		if _, err := trainfit.MethodFor(o, 0, 0); err != nil || o == 0 {
-			return nil, fmt.Errorf("%w: Optimizers[%d] = %d is not a known optimizer", ErrConfig, i, int(o))
+			return nil, fmt.Errorf("%w: Optimizers[%d] = %d is not a known optimizer", ErrOptions, i, int(o))
 		}
 		names = append(names, o.String())
 	}
 	for i, m := range cfg.Methods {
 		if m.Method == nil {
-			return nil, fmt.Errorf("%w: Methods[%d] (%q) has a nil Method", ErrConfig, i, m.Name)
+			return nil, fmt.Errorf("%w: Methods[%d] (%q) has a nil Method", ErrOptions, i, m.Name)
 		}
 		if m.Name == "" {
-			return nil, fmt.Errorf("%w: Methods[%d] has no name", ErrConfig, i)
+			return nil, fmt.Errorf("%w: Methods[%d] has no name", ErrOptions, i)
 		}
 		names = append(names, m.Name)
 	}
 	for i, n := range names {
 		if slices.Index(names, n) != i {
-			return nil, fmt.Errorf("%w: method %q given twice", ErrConfig, n)
+			return nil, fmt.Errorf("%w: method %q given twice", ErrOptions, n)
 		}
 	}
 	return names, nil
@@ -420,7 +420,7 @@ func contenderNames(cfg CompareConfig) ([]string, error) {
 
 // contender returns method i of cfg for a seed, and whether it works on
 // mini-batches.
-func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Method, bool, error) {
+func contender(cfg CompareOptions, i int, s *spec.Network, seed uint64) (optim.Method, bool, error) {
 	var m optim.Method
 	if i < len(cfg.Optimizers) {
 		var err error
@@ -440,7 +440,7 @@ func contender(cfg CompareConfig, i int, s *spec.Network, seed uint64) (optim.Me
 // checkSet reports how set does not fit the net (see trainfit.CheckSet).
 func checkSet(s *spec.Network, set *data.Set) error {
 	if err := trainfit.CheckSet(s, set, "data"); err != nil {
-		return fmt.Errorf("%w: %w", ErrConfig, err)
+		return fmt.Errorf("%w: %w", ErrOptions, err)
 	}
 	return nil
 }
@@ -467,7 +467,7 @@ func (p *problem) close() {
 func newProblem(s *spec.Network, trainSet, holdSet *data.Set, noScale bool, batch, workers int) (*problem, error) {
 	prep, err := trainfit.Prepare(s, trainSet, holdSet, noScale)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %w", ErrConfig, err)
+		return nil, fmt.Errorf("%w: %w", ErrOptions, err)
 	}
 	x, hx, warn := prep.X, prep.HoldoutX, prep.Warnings
 	net, err := nn.Compile(prep.Spec)
@@ -657,12 +657,12 @@ func ProfileTable(comps []*Comparison, byTime bool) (solvers []string, cost [][]
 	}
 	for ci, c := range comps {
 		if c == nil {
-			return nil, nil, fmt.Errorf("%w: comparison %d is nil", ErrConfig, ci)
+			return nil, nil, fmt.Errorf("%w: comparison %d is nil", ErrOptions, ci)
 		}
 		if ci == 0 {
 			solvers = slices.Clone(c.Methods)
 		} else if !slices.Equal(solvers, c.Methods) {
-			return nil, nil, fmt.Errorf("%w: comparison %d has methods %v, the first %v", ErrConfig, ci, c.Methods, solvers)
+			return nil, nil, fmt.Errorf("%w: comparison %d has methods %v, the first %v", ErrOptions, ci, c.Methods, solvers)
 		}
 		for k := range c.Seeds {
 			row := make([]float64, len(solvers))

@@ -53,7 +53,7 @@ penalty:
 func TestCompareConvexIris(t *testing.T) {
 	s := parseSpec(t, irisLogistic)
 	set := readSet(t, "iris.csv")
-	c, err := Compare(context.Background(), s, set, CompareConfig{
+	c, err := Compare(context.Background(), s, set, CompareOptions{
 		Optimizers: []spec.Optimizer{spec.GD, spec.CG, spec.LBFGS},
 		Limits:     optim.Limits{Iterations: 3000, GradTol: 1e-10},
 		Seeds:      2,
@@ -79,7 +79,7 @@ func TestCompareConvexIris(t *testing.T) {
 func TestCompareDeterministic(t *testing.T) {
 	s := parseSpec(t, irisLogistic)
 	set := readSet(t, "iris.csv")
-	cfg := CompareConfig{
+	cfg := CompareOptions{
 		Optimizers: []spec.Optimizer{spec.CG, spec.Adam},
 		Limits:     optim.Limits{Iterations: 20},
 		Seeds:      2,
@@ -120,13 +120,13 @@ func TestCompareDeterministic(t *testing.T) {
 func TestCompareFeedsProfile(t *testing.T) {
 	s := parseSpec(t, irisLogistic)
 	set := readSet(t, "iris.csv")
-	c, err := Compare(context.Background(), s, set, CompareConfig{
+	c, err := Compare(context.Background(), s, set, CompareOptions{
 		Optimizers: []spec.Optimizer{spec.GD, spec.LBFGS, spec.Adam},
 		Limits:     optim.Limits{Iterations: 200},
 		Seeds:      3,
 	})
 	require.NoError(t, err)
-	c2, err := Compare(context.Background(), s, set, CompareConfig{
+	c2, err := Compare(context.Background(), s, set, CompareOptions{
 		Optimizers: []spec.Optimizer{spec.GD, spec.LBFGS, spec.Adam},
 		Limits:     optim.Limits{Iterations: 5},
 		Seed:       10,
@@ -190,7 +190,7 @@ func TestCompareFeedsProfile(t *testing.T) {
 	// Comparisons of different methods cannot share a profile.
 	c3 := &Comparison{Methods: []string{"gd"}, Seeds: []uint64{1}, Runs: [][]Run{{{}}}}
 	_, _, err = ProfileTable([]*Comparison{c, c3}, false)
-	assert.ErrorIs(t, err, ErrConfig, "mismatched methods")
+	assert.ErrorIs(t, err, ErrOptions, "mismatched methods")
 	_, _, err = ProfileTable(nil, false)
 	assert.ErrorIs(t, err, ErrNoProblems, "no comparisons")
 }
@@ -202,28 +202,28 @@ func TestCompareErrors(t *testing.T) {
 	tests := []struct {
 		name string
 		s    *spec.Network
-		cfg  CompareConfig
+		cfg  CompareOptions
 	}{
-		{"negative seeds", s, CompareConfig{Seeds: -1}},
-		{"negative batch", s, CompareConfig{Batch: -2}},
-		{"holdout 1", s, CompareConfig{Holdout: 1}},
-		{"holdout NaN", s, CompareConfig{Holdout: math.NaN()}},
-		{"target negative", s, CompareConfig{Target: -0.1}},
-		{"unknown optimizer", s, CompareConfig{Optimizers: []spec.Optimizer{99}}},
-		{"zero optimizer", s, CompareConfig{Optimizers: []spec.Optimizer{0}}},
-		{"duplicate", s, CompareConfig{Optimizers: []spec.Optimizer{spec.CG}, Methods: []Contender{{"cg", &optim.LBFGS{}}}}},
-		{"nil method", s, CompareConfig{Methods: []Contender{{"x", nil}}}},
-		{"spec inputs differ", wide, CompareConfig{}},
+		{"negative seeds", s, CompareOptions{Seeds: -1}},
+		{"negative batch", s, CompareOptions{Batch: -2}},
+		{"holdout 1", s, CompareOptions{Holdout: 1}},
+		{"holdout NaN", s, CompareOptions{Holdout: math.NaN()}},
+		{"target negative", s, CompareOptions{Target: -0.1}},
+		{"unknown optimizer", s, CompareOptions{Optimizers: []spec.Optimizer{99}}},
+		{"zero optimizer", s, CompareOptions{Optimizers: []spec.Optimizer{0}}},
+		{"duplicate", s, CompareOptions{Optimizers: []spec.Optimizer{spec.CG}, Methods: []Contender{{"cg", &optim.LBFGS{}}}}},
+		{"nil method", s, CompareOptions{Methods: []Contender{{"x", nil}}}},
+		{"spec inputs differ", wide, CompareOptions{}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			c, err := Compare(context.Background(), tt.s, set, tt.cfg)
-			require.ErrorIs(t, err, ErrConfig)
+			require.ErrorIs(t, err, ErrOptions)
 			assert.Nil(t, c, "comparison returned with the error")
 		})
 	}
-	_, err := Compare(context.Background(), nil, set, CompareConfig{})
-	assert.ErrorIs(t, err, ErrConfig, "nil spec")
+	_, err := Compare(context.Background(), nil, set, CompareOptions{})
+	assert.ErrorIs(t, err, ErrOptions, "nil spec")
 }
 
 func TestCompareCancelled(t *testing.T) {
@@ -231,7 +231,7 @@ func TestCompareCancelled(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	c, err := Compare(ctx, s, set, CompareConfig{Seeds: 2})
+	c, err := Compare(ctx, s, set, CompareOptions{Seeds: 2})
 	require.ErrorIs(t, err, context.Canceled)
 	assert.Nil(t, c, "comparison with no complete seed, want nil")
 }

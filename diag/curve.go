@@ -14,15 +14,15 @@ import (
 	"github.com/seine-ml/seine/spec"
 )
 
-// Defaults of CurveConfig.
+// Defaults of CurveOptions.
 const (
 	DefaultSteps   = 10   // training sizes of a learning curve
 	DefaultHoldout = 0.25 // holdout fraction of a learning curve
 )
 
-// CurveConfig sets a learning curve. Its zero value uses 10 sizes, a 25%
+// CurveOptions sets a learning curve. Its zero value uses 10 sizes, a 25%
 // stratified holdout and the spec's optimizer and limits.
-type CurveConfig struct {
+type CurveOptions struct {
 	// Steps is the number of training sizes, ≥ 1; 0 means DefaultSteps.
 	Steps int
 	// Holdout is the fraction of rows kept out, in (0, 1); 0 means
@@ -40,7 +40,7 @@ type CurveConfig struct {
 	// value λ/(2n) so that only the data vary along the curve; the last
 	// point is then trained exactly as the spec says.
 	SpecPenalty bool
-	// Method, Limits, NoScale and Workers are as in SweepConfig.
+	// Method, Limits, NoScale and Workers are as in SweepOptions.
 	Method  optim.Method
 	Limits  optim.Limits
 	NoScale bool
@@ -131,15 +131,15 @@ type Curve struct {
 //
 // Fit i (0-based) trains the size of step i + 1; cfg.Shard selects a part
 // of them. Every shard computes the split, the order and the baseline.
-func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg CurveConfig) (*Curve, error) {
+func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg CurveOptions) (*Curve, error) {
 	if s == nil || set == nil {
-		return nil, fmt.Errorf("%w: nil spec or data set", ErrConfig)
+		return nil, fmt.Errorf("%w: nil spec or data set", ErrOptions)
 	}
 	switch {
 	case cfg.Steps < 0:
-		return nil, fmt.Errorf("%w: Steps = %d, want ≥ 1 (or 0 for %d)", ErrConfig, cfg.Steps, DefaultSteps)
+		return nil, fmt.Errorf("%w: Steps = %d, want ≥ 1 (or 0 for %d)", ErrOptions, cfg.Steps, DefaultSteps)
 	case cfg.Holdout != 0 && !(cfg.Holdout > 0 && cfg.Holdout < 1):
-		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrConfig, cfg.Holdout)
+		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrOptions, cfg.Holdout)
 	}
 	steps, hold := cfg.Steps, cfg.Holdout
 	if steps == 0 {
@@ -167,7 +167,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 	}
 	n := trainSet.Rows()
 	if steps > n {
-		return nil, fmt.Errorf("%w: %d steps for %d training rows; want at most one step per row", ErrConfig, steps, n)
+		return nil, fmt.Errorf("%w: %d steps for %d training rows; want at most one step per row", ErrOptions, steps, n)
 	}
 	order := stratifiedOrder(trainSet, seed)
 	c := &Curve{HoldoutRows: holdSet.Rows(), Baseline: baseline(trainSet, holdSet), Steps: steps, Shard: cfg.Shard}
@@ -218,7 +218,7 @@ func LearningCurve(ctx context.Context, s *spec.Network, set *data.Set, cfg Curv
 // parts must hold each shard 0 … N−1 of one N exactly once, all of the
 // same curve (steps, holdout rows and baseline; that they come from the
 // same spec, data and settings is for the caller to check). The result
-// equals the whole curve's, bit for bit. Errors wrap ErrConfig; one that
+// equals the whole curve's, bit for bit. Errors wrap ErrOptions; one that
 // blames a part is a *PartError, which names it by its index in parts.
 func MergeCurves(parts []*Curve) (*Curve, error) {
 	if err := checkShards(parts, func(p *Curve) Shard { return p.Shard }); err != nil {

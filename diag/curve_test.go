@@ -22,7 +22,7 @@ import (
 // the largest size only, not step by step.
 //
 // The penalty per row is held at the spec's full-data value (the default of
-// CurveConfig). With the spec's λ (3.0 when measured) applied as written to
+// CurveOptions). With the spec's λ (3.0 when measured) applied as written to
 // every subset, λ/(2m) is ten times stronger at the smallest of 10 sizes
 // than at the largest, and the training cross-entropy then falls with m
 // instead (measured with seine curve -spec-penalty: 0.188 nats at 225
@@ -38,7 +38,7 @@ func TestLearningCurveTriage(t *testing.T) {
 	set, err := data.ReadCSV(f, data.CSVOptions{Columns: encode.ColumnsFor(s), MissingTokens: s.MissingTokens, Classes: s.Output.Classes})
 	f.Close()
 	require.NoError(t, err)
-	c, err := LearningCurve(context.Background(), s, set, CurveConfig{Steps: 3, Limits: optim.Limits{Iterations: 200}})
+	c, err := LearningCurve(context.Background(), s, set, CurveOptions{Steps: 3, Limits: optim.Limits{Iterations: 200}})
 	require.NoError(t, err)
 	for _, p := range c.Points {
 		t.Logf("%4d rows: train %.4f holdout %.4f", p.Rows, p.TrainCost, p.HoldoutCost)
@@ -126,20 +126,20 @@ func TestLearningCurveErrors(t *testing.T) {
 	ctx := context.Background()
 	tests := []struct {
 		name string
-		cfg  CurveConfig
+		cfg  CurveOptions
 	}{
-		{"negative steps", CurveConfig{Steps: -1}},
-		{"holdout 1.5", CurveConfig{Holdout: 1.5}},
-		{"500 steps", CurveConfig{Steps: 500}},
+		{"negative steps", CurveOptions{Steps: -1}},
+		{"holdout 1.5", CurveOptions{Holdout: 1.5}},
+		{"500 steps", CurveOptions{Steps: 500}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := LearningCurve(ctx, s, set, tt.cfg)
-			assert.ErrorIs(t, err, ErrConfig, "%+v", tt.cfg)
+			assert.ErrorIs(t, err, ErrOptions, "%+v", tt.cfg)
 		})
 	}
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	_, err := LearningCurve(cctx, s, set, CurveConfig{})
+	_, err := LearningCurve(cctx, s, set, CurveOptions{})
 	assert.ErrorIs(t, err, context.Canceled, "cancelled")
 }

@@ -18,17 +18,17 @@ import (
 )
 
 // DefaultRepeats is the number of shuffles of each input when
-// ImportanceConfig.Repeats is 0.
+// ImportanceOptions.Repeats is 0.
 const DefaultRepeats = 5
 
-// ErrImportance is wrapped by errors in an ImportanceConfig or in how it
+// ErrImportance is wrapped by errors in an ImportanceOptions or in how it
 // fits the model and data.
 var ErrImportance = errors.New("diag: cannot measure input importance")
 
-// ImportanceConfig sets a permutation importance run. Its zero value
+// ImportanceOptions sets a permutation importance run. Its zero value
 // shuffles each raw input DefaultRepeats times from seed 0, decides classes
 // as the model does, and uses GOMAXPROCS workers.
-type ImportanceConfig struct {
+type ImportanceOptions struct {
 	// Repeats is the number of independent shuffles of each input, ≥ 1;
 	// 0 means DefaultRepeats.
 	Repeats int
@@ -113,7 +113,7 @@ func (im *Importance) Ranked() []int {
 //
 // Inputs are spread over a bounded pool of workers; ctx is checked before
 // each input and each repeat, and its error is returned wrapped.
-func PermutationImportance(ctx context.Context, m *nn.Model, set *data.Set, cfg ImportanceConfig) (*Importance, error) {
+func PermutationImportance(ctx context.Context, m *nn.Model, set *data.Set, cfg ImportanceOptions) (*Importance, error) {
 	repeats := cfg.Repeats
 	switch {
 	case repeats == 0:

@@ -62,7 +62,7 @@ func noisyIris(t testing.TB) *data.Set {
 func trainNoisyIris(t testing.TB) (*nn.Model, *data.Set) {
 	t.Helper()
 	set := noisyIris(t)
-	res, err := train.Train(context.Background(), parseSpec(t, irisNoisy), set, train.Config{Limits: optim.Limits{Iterations: 300}})
+	res, err := train.Train(context.Background(), parseSpec(t, irisNoisy), set, train.Options{Limits: optim.Limits{Iterations: 300}})
 	require.NoError(t, err)
 	return res.Model, set
 }
@@ -76,7 +76,7 @@ func trainNoisyIris(t testing.TB) (*nn.Model, *data.Set) {
 func TestImportanceIrisNoise(t *testing.T) {
 	m, set := trainNoisyIris(t)
 	for seed := range uint64(4) {
-		im, err := PermutationImportance(context.Background(), m, set, ImportanceConfig{Seed: seed})
+		im, err := PermutationImportance(context.Background(), m, set, ImportanceOptions{Seed: seed})
 		require.NoError(t, err)
 		require.Len(t, im.Inputs, 7)
 		assert.Equal(t, DefaultRepeats, im.Repeats)
@@ -102,7 +102,7 @@ func TestImportanceIrisNoise(t *testing.T) {
 // repeats (mean, sample SD with divisor k − 1, range).
 func TestImportanceBase(t *testing.T) {
 	m, set := trainNoisyIris(t)
-	im, err := PermutationImportance(context.Background(), m, set, ImportanceConfig{Repeats: 3, Seed: 7})
+	im, err := PermutationImportance(context.Background(), m, set, ImportanceOptions{Repeats: 3, Seed: 7})
 	require.NoError(t, err)
 	p, err := m.ProbabilitiesSet(set)
 	require.NoError(t, err)
@@ -162,7 +162,7 @@ func TestImportanceUnusedInput(t *testing.T) {
 	}
 	cut, err := nn.NewModel(m.Spec(), params, m.Encoder(), m.Classes())
 	require.NoError(t, err)
-	im, err := PermutationImportance(context.Background(), cut, set, ImportanceConfig{Seed: 1})
+	im, err := PermutationImportance(context.Background(), cut, set, ImportanceOptions{Seed: 1})
 	require.NoError(t, err)
 	for r := range im.Repeats {
 		assert.Zero(t, im.Inputs[unused].Rises[r])
@@ -178,7 +178,7 @@ func TestImportanceDeterministic(t *testing.T) {
 	m, set := trainNoisyIris(t)
 	run := func(procs, workers int, seed uint64) *Importance {
 		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
-		im, err := PermutationImportance(context.Background(), m, set, ImportanceConfig{Seed: seed, Workers: workers})
+		im, err := PermutationImportance(context.Background(), m, set, ImportanceOptions{Seed: seed, Workers: workers})
 		require.NoError(t, err)
 		return im
 	}
@@ -230,9 +230,9 @@ penalty:
 `)
 	set, err := data.ReadCSV(strings.NewReader(b.String()), data.CSVOptions{Columns: encode.ColumnsFor(s), Classes: s.Output.Classes})
 	require.NoError(t, err)
-	res, err := train.Train(context.Background(), s, set, train.Config{Limits: optim.Limits{Iterations: 200}})
+	res, err := train.Train(context.Background(), s, set, train.Options{Limits: optim.Limits{Iterations: 200}})
 	require.NoError(t, err)
-	im, err := PermutationImportance(context.Background(), res.Model, set, ImportanceConfig{Repeats: 4})
+	im, err := PermutationImportance(context.Background(), res.Model, set, ImportanceOptions{Repeats: 4})
 	require.NoError(t, err)
 	assert.Equal(t, spec.CategoryInput, im.Inputs[0].Type)
 	for r := range im.Repeats {
@@ -245,18 +245,18 @@ penalty:
 // errors, never panics.
 func TestImportanceErrors(t *testing.T) {
 	m, set := trainNoisyIris(t)
-	_, err := PermutationImportance(context.Background(), m, set, ImportanceConfig{Repeats: -1})
+	_, err := PermutationImportance(context.Background(), m, set, ImportanceOptions{Repeats: -1})
 	assert.ErrorIs(t, err, ErrImportance)
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err = PermutationImportance(ctx, m, set, ImportanceConfig{})
+	_, err = PermutationImportance(ctx, m, set, ImportanceOptions{})
 	assert.ErrorIs(t, err, context.Canceled)
 	assert.ErrorIs(t, err, ErrImportance)
 	unlabelled := *set
 	unlabelled.Y = nil
-	_, err = PermutationImportance(context.Background(), m, &unlabelled, ImportanceConfig{})
+	_, err = PermutationImportance(context.Background(), m, &unlabelled, ImportanceOptions{})
 	assert.ErrorIs(t, err, ErrImportance)
-	_, err = PermutationImportance(context.Background(), m, set, ImportanceConfig{Thresholds: []float64{0.5}})
+	_, err = PermutationImportance(context.Background(), m, set, ImportanceOptions{Thresholds: []float64{0.5}})
 	assert.ErrorIs(t, err, ErrImportance, "a threshold for a softmax model")
 	if errors.Is(err, context.Canceled) {
 		t.Error("not cancelled")

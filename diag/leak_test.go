@@ -27,11 +27,11 @@ func TestDiagnosticsLeaveNoGoroutine(t *testing.T) {
 		}
 	}
 	set = set.Subset(idx)
-	_, err := Compare(context.Background(), s, set, CompareConfig{
+	_, err := Compare(context.Background(), s, set, CompareOptions{
 		Optimizers: []spec.Optimizer{spec.LBFGS, spec.Adam}, Limits: optim.Limits{Iterations: 5}, Workers: 3, Holdout: 0.2,
 	})
 	require.NoError(t, err, "Compare")
-	_, err = SweepPenalty(context.Background(), s, set, []float64{0.1, 1}, SweepConfig{Folds: 2, Limits: optim.Limits{Iterations: 5}, Workers: 3})
+	_, err = SweepPenalty(context.Background(), s, set, []float64{0.1, 1}, SweepOptions{Folds: 2, Limits: optim.Limits{Iterations: 5}, Workers: 3})
 	require.NoError(t, err, "SweepPenalty")
 	goleak.VerifyNone(t, before)
 }

@@ -10,7 +10,7 @@ import (
 
 // TestMergePartError: an error of MergeSweeps, MergeCurves or
 // MergeComparisons that blames one part is a *PartError (errors.As) with
-// the part's index, wraps ErrConfig, and Named calls the parts it
+// the part's index, wraps ErrOptions, and Named calls the parts it
 // mentions by the names given. The parts are made by hand: two shards of
 // two fits, then spoilt.
 func TestMergePartError(t *testing.T) {
@@ -213,7 +213,7 @@ func TestMergePartError(t *testing.T) {
 			var pe *PartError
 			require.True(t, errors.As(err, &pe), "errors.As finds no *PartError in %v", err)
 			assert.Equal(t, tt.part, pe.Part, "the part blamed")
-			assert.ErrorIs(t, err, ErrConfig)
+			assert.ErrorIs(t, err, ErrOptions)
 			assert.Equal(t, tt.want, err.Error())
 			assert.Equal(t, tt.named, pe.Named(func(i int) string { return files[i] }))
 		})
@@ -226,7 +226,7 @@ func TestMergeErrorNoPart(t *testing.T) {
 	part := &Curve{Steps: 2, Shard: Shard{0, 2}, Points: []CurvePoint{{Step: 1}}}
 	_, err := MergeCurves([]*Curve{part})
 	require.Error(t, err)
-	assert.ErrorIs(t, err, ErrConfig)
+	assert.ErrorIs(t, err, ErrOptions)
 	var pe *PartError
 	assert.False(t, errors.As(err, &pe), "%v", err)
 	assert.Equal(t, "diag: bad configuration: shard 1/2 is missing", err.Error())

@@ -33,7 +33,7 @@ func (s Shard) check() error {
 		return nil
 	}
 	if s.N < 1 || s.K < 0 || s.K >= s.N {
-		return fmt.Errorf("%w: Shard %d/%d, want 0 ≤ K < N (or 0/0 for the whole run)", ErrConfig, s.K, s.N)
+		return fmt.Errorf("%w: Shard %d/%d, want 0 ≤ K < N (or 0/0 for the whole run)", ErrOptions, s.K, s.N)
 	}
 	return nil
 }
@@ -80,7 +80,7 @@ type FitDone struct {
 
 // PartError is an error of MergeSweeps, MergeCurves or MergeComparisons
 // that blames one of the parts: Part is its index in the parts given. Its
-// message, which starts with ErrConfig's, calls that part, and any other
+// message, which starts with ErrOptions's, calls that part, and any other
 // it is compared with, "part i"; Named gives the same message with the
 // parts called what the caller likes, such as the files they were read
 // from. The merge functions return it as it is, not wrapped, so Named is
@@ -91,7 +91,7 @@ type FitDone struct {
 //		fmt.Println(pe.Named(func(i int) string { return files[i] }))
 //	}
 //
-// It wraps ErrConfig.
+// It wraps ErrOptions.
 type PartError struct {
 	Part int
 
@@ -103,7 +103,7 @@ type PartError struct {
 type partRef int
 
 // partErrorf returns a PartError that blames part i; format and args are
-// its message after ErrConfig's, with a partRef (formatted with %s) for
+// its message after ErrOptions's, with a partRef (formatted with %s) for
 // each part it mentions.
 func partErrorf(i int, format string, args ...any) *PartError {
 	return &PartError{Part: i, format: format, args: args}
@@ -123,11 +123,11 @@ func (e *PartError) Named(name func(i int) string) string {
 			args[j] = name(int(r))
 		}
 	}
-	return fmt.Sprintf("%v: %s", ErrConfig, fmt.Sprintf(e.format, args...))
+	return fmt.Sprintf("%v: %s", ErrOptions, fmt.Sprintf(e.format, args...))
 }
 
-// Unwrap returns ErrConfig.
-func (e *PartError) Unwrap() error { return ErrConfig }
+// Unwrap returns ErrOptions.
+func (e *PartError) Unwrap() error { return ErrOptions }
 
 // checkShards checks that parts, none nil and one per shard of the same
 // N, hold each shard 0 … N−1 exactly once; shard returns a part's Shard.
@@ -138,7 +138,7 @@ func checkShards[T any](parts []*T, shard func(*T) Shard) error {
 		}
 	}
 	if len(parts) == 0 {
-		return fmt.Errorf("%w: no parts to merge", ErrConfig)
+		return fmt.Errorf("%w: no parts to merge", ErrOptions)
 	}
 	N := shard(parts[0]).N
 	seen := make([]int, max(N, 0)) // N < 0 is reported for part 0 below
@@ -158,7 +158,7 @@ func checkShards[T any](parts []*T, shard func(*T) Shard) error {
 	}
 	for k, p := range seen {
 		if p == 0 {
-			return fmt.Errorf("%w: shard %d/%d is missing", ErrConfig, k, N)
+			return fmt.Errorf("%w: shard %d/%d is missing", ErrOptions, k, N)
 		}
 	}
 	return nil

@@ -65,7 +65,7 @@ func TestSweepShardsMerge(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	s := parseSpec(t, irisHidden)
 	lambdas := []float64{0, 0.1, 1}
-	cfg := SweepConfig{Folds: 3, Limits: optim.Limits{Iterations: 15}}
+	cfg := SweepOptions{Folds: 3, Limits: optim.Limits{Iterations: 15}}
 	var seen []FitDone
 	withProgress := cfg
 	withProgress.Progress = func(f FitDone) { seen = append(seen, f) }
@@ -91,10 +91,10 @@ func TestSweepShardsMerge(t *testing.T) {
 		require.NoError(t, err, "N = %d", n)
 		assert.Equal(t, whole, merged, "N = %d", n) // compares float64 by ==; NaN-free here
 	}
-	units, err := SweepUnits(context.Background(), s, set, []int{1, 2}, SweepConfig{Holdout: 0.3, Limits: optim.Limits{Iterations: 10}})
+	units, err := SweepUnits(context.Background(), s, set, []int{1, 2}, SweepOptions{Holdout: 0.3, Limits: optim.Limits{Iterations: 10}})
 	require.NoError(t, err)
 	parts := shards(t, 2, func(sh Shard) (*Sweep, error) {
-		return SweepUnits(context.Background(), s, set, []int{1, 2}, SweepConfig{Holdout: 0.3, Limits: optim.Limits{Iterations: 10}, Shard: sh})
+		return SweepUnits(context.Background(), s, set, []int{1, 2}, SweepOptions{Holdout: 0.3, Limits: optim.Limits{Iterations: 10}, Shard: sh})
 	})
 	merged, err := MergeSweeps(parts)
 	require.NoError(t, err)
@@ -104,7 +104,7 @@ func TestSweepShardsMerge(t *testing.T) {
 func TestCurveShardsMerge(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	s := parseSpec(t, irisHidden)
-	cfg := CurveConfig{Steps: 4, Limits: optim.Limits{Iterations: 15}}
+	cfg := CurveOptions{Steps: 4, Limits: optim.Limits{Iterations: 15}}
 	var seen []FitDone
 	withProgress := cfg
 	withProgress.Progress = func(f FitDone) { seen = append(seen, f) }
@@ -131,7 +131,7 @@ func TestCurveShardsMerge(t *testing.T) {
 func TestCompareShardsMerge(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	s := parseSpec(t, irisHidden)
-	cfg := CompareConfig{
+	cfg := CompareOptions{
 		Optimizers: []spec.Optimizer{spec.GD, spec.LBFGS, spec.Adam}, Seeds: 2, Holdout: 0.2,
 		Limits: optim.Limits{Iterations: 12},
 	}
@@ -198,7 +198,7 @@ func TestMergeErrors(t *testing.T) {
 	set := readSet(t, "iris.csv")
 	s := parseSpec(t, irisHidden)
 	run := func(lambdas []float64, sh Shard) *Sweep {
-		sw, err := SweepPenalty(context.Background(), s, set, lambdas, SweepConfig{Folds: 2, Limits: optim.Limits{Iterations: 2}, Shard: sh})
+		sw, err := SweepPenalty(context.Background(), s, set, lambdas, SweepOptions{Folds: 2, Limits: optim.Limits{Iterations: 2}, Shard: sh})
 		require.NoError(t, err)
 		return sw
 	}
@@ -221,12 +221,12 @@ func TestMergeErrors(t *testing.T) {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := MergeSweeps(tt.parts)
 			require.Error(t, err)
-			assert.True(t, errors.Is(err, ErrConfig))
+			assert.True(t, errors.Is(err, ErrOptions))
 			assert.Contains(t, err.Error(), tt.want)
 		})
 	}
 	for _, sh := range []Shard{{3, 3}, {0, 0 - 1}, {-1, 2}, {1, 0}} {
-		_, err := SweepPenalty(context.Background(), s, set, []float64{1}, SweepConfig{Shard: sh})
-		assert.ErrorIs(t, err, ErrConfig, "shard %v", sh)
+		_, err := SweepPenalty(context.Background(), s, set, []float64{1}, SweepOptions{Shard: sh})
+		assert.ErrorIs(t, err, ErrOptions, "shard %v", sh)
 	}
 }

@@ -19,9 +19,9 @@ import (
 // trade; 5 keeps the work small).
 const DefaultFolds = 5
 
-// SweepConfig sets a sweep. Its zero value runs 5-fold stratified
+// SweepOptions sets a sweep. Its zero value runs 5-fold stratified
 // cross-validation with the spec's optimizer and limits.
-type SweepConfig struct {
+type SweepOptions struct {
 	// Folds is the number k ≥ 2 of stratified folds (data.Folds); each
 	// value is trained k times, each time validated on one fold. 0 means
 	// DefaultFolds, unless Holdout is set.
@@ -34,12 +34,12 @@ type SweepConfig struct {
 	// the spec's init.seed.
 	Seed uint64
 	// Method is the optimizer of every fit; nil means the spec's (see
-	// train.Config.Method). Fits run one after the other, so one value
+	// train.Options.Method). Fits run one after the other, so one value
 	// serves them all.
 	Method optim.Method
-	// Limits stop every fit, as in train.Config.Limits.
+	// Limits stop every fit, as in train.Options.Limits.
 	Limits optim.Limits
-	// NoScale trains on the features as they are (see train.Config).
+	// NoScale trains on the features as they are (see train.Options).
 	NoScale bool
 	// Workers bounds the goroutines of one evaluation; 0 means GOMAXPROCS.
 	Workers int
@@ -135,17 +135,17 @@ type SweepFit struct {
 // The fits are enumerated value × fold: fit i = v·k + f trains value v
 // (in the order given) and validates on fold f of k (k = 1 with a
 // holdout). cfg.Shard selects a part of them.
-func SweepPenalty(ctx context.Context, s *spec.Network, set *data.Set, lambdas []float64, cfg SweepConfig) (*Sweep, error) {
+func SweepPenalty(ctx context.Context, s *spec.Network, set *data.Set, lambdas []float64, cfg SweepOptions) (*Sweep, error) {
 	if s == nil {
-		return nil, fmt.Errorf("%w: nil spec", ErrConfig)
+		return nil, fmt.Errorf("%w: nil spec", ErrOptions)
 	}
 	if len(lambdas) == 0 {
-		return nil, fmt.Errorf("%w: no penalty strengths to sweep", ErrConfig)
+		return nil, fmt.Errorf("%w: no penalty strengths to sweep", ErrOptions)
 	}
 	specs := make([]*spec.Network, len(lambdas))
 	for i, l := range lambdas {
 		if !(l >= 0) || math.IsInf(l, 1) {
-			return nil, fmt.Errorf("%w: penalty strength %d is %g, want finite and ≥ 0", ErrConfig, i+1, l)
+			return nil, fmt.Errorf("%w: penalty strength %d is %g, want finite and ≥ 0", ErrOptions, i+1, l)
 		}
 		specs[i] = s.Clone()
 		specs[i].Penalty.L2 = l
@@ -156,20 +156,20 @@ func SweepPenalty(ctx context.Context, s *spec.Network, set *data.Set, lambdas [
 // SweepUnits is SweepPenalty varying the number of units of the first
 // hidden layer instead, at the spec's λ. The spec must have a hidden
 // layer.
-func SweepUnits(ctx context.Context, s *spec.Network, set *data.Set, units []int, cfg SweepConfig) (*Sweep, error) {
+func SweepUnits(ctx context.Context, s *spec.Network, set *data.Set, units []int, cfg SweepOptions) (*Sweep, error) {
 	if s == nil {
-		return nil, fmt.Errorf("%w: nil spec", ErrConfig)
+		return nil, fmt.Errorf("%w: nil spec", ErrOptions)
 	}
 	if len(s.Hidden) == 0 {
-		return nil, fmt.Errorf("%w: the spec has no hidden layer whose units could vary", ErrConfig)
+		return nil, fmt.Errorf("%w: the spec has no hidden layer whose units could vary", ErrOptions)
 	}
 	if len(units) == 0 {
-		return nil, fmt.Errorf("%w: no unit counts to sweep", ErrConfig)
+		return nil, fmt.Errorf("%w: no unit counts to sweep", ErrOptions)
 	}
 	specs := make([]*spec.Network, len(units))
 	for i, u := range units {
 		if u < 1 {
-			return nil, fmt.Errorf("%w: unit count %d is %d, want ≥ 1", ErrConfig, i+1, u)
+			return nil, fmt.Errorf("%w: unit count %d is %d, want ≥ 1", ErrOptions, i+1, u)
 		}
 		specs[i] = s.Clone()
 		specs[i].Hidden[0].Units = u
@@ -177,17 +177,17 @@ func SweepUnits(ctx context.Context, s *spec.Network, set *data.Set, units []int
 	return sweep(ctx, HiddenUnits, specs, set, cfg)
 }
 
-func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *data.Set, cfg SweepConfig) (*Sweep, error) {
+func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *data.Set, cfg SweepOptions) (*Sweep, error) {
 	if set == nil {
-		return nil, fmt.Errorf("%w: nil data set", ErrConfig)
+		return nil, fmt.Errorf("%w: nil data set", ErrOptions)
 	}
 	switch {
 	case cfg.Folds != 0 && cfg.Holdout != 0:
-		return nil, fmt.Errorf("%w: both Folds (%d) and Holdout (%g) are set; choose one", ErrConfig, cfg.Folds, cfg.Holdout)
+		return nil, fmt.Errorf("%w: both Folds (%d) and Holdout (%g) are set; choose one", ErrOptions, cfg.Folds, cfg.Holdout)
 	case cfg.Folds < 0 || cfg.Folds == 1:
-		return nil, fmt.Errorf("%w: Folds = %d, want ≥ 2 (or 0 for %d)", ErrConfig, cfg.Folds, DefaultFolds)
+		return nil, fmt.Errorf("%w: Folds = %d, want ≥ 2 (or 0 for %d)", ErrOptions, cfg.Folds, DefaultFolds)
 	case cfg.Holdout != 0 && !(cfg.Holdout > 0 && cfg.Holdout < 1):
-		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrConfig, cfg.Holdout)
+		return nil, fmt.Errorf("%w: Holdout = %g, want a fraction in (0, 1)", ErrOptions, cfg.Holdout)
 	}
 	for _, sp := range specs {
 		if err := trainfit.CheckSpec(sp); err != nil {
@@ -292,7 +292,7 @@ func (sw *Sweep) summarise() {
 // hold each shard 0 … N−1 of one N exactly once, all of the same sweep
 // (parameter, folds, holdout and size; that they come from the same spec,
 // data and settings is for the caller to check). The result equals the
-// whole sweep's, bit for bit. Errors wrap ErrConfig; one that blames a
+// whole sweep's, bit for bit. Errors wrap ErrOptions; one that blames a
 // part is a *PartError, which names it by its index in parts.
 func MergeSweeps(parts []*Sweep) (*Sweep, error) {
 	if err := checkShards(parts, func(p *Sweep) Shard { return p.Shard }); err != nil {
@@ -326,7 +326,7 @@ func MergeSweeps(parts []*Sweep) (*Sweep, error) {
 		for _, f := range sw.Fits[v : v+sw.Folds] {
 			if f.Lambda != sw.Fits[v].Lambda && !(math.IsNaN(f.Lambda) && math.IsNaN(sw.Fits[v].Lambda)) || f.Units != sw.Fits[v].Units {
 				return nil, fmt.Errorf("%w: fit %d has λ = %g and %d units, fit %d of the same value λ = %g and %d units",
-					ErrConfig, f.Index, f.Lambda, f.Units, v, sw.Fits[v].Lambda, sw.Fits[v].Units)
+					ErrOptions, f.Index, f.Lambda, f.Units, v, sw.Fits[v].Lambda, sw.Fits[v].Units)
 			}
 		}
 	}
@@ -390,7 +390,7 @@ type fitted struct {
 
 // fit trains s on tr and scores the model on tr and va.
 func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (fitted, error) {
-	res, err := train.Train(ctx, s, tr, train.Config{
+	res, err := train.Train(ctx, s, tr, train.Options{
 		Method: fc.method, Limits: fc.limits, NoScale: fc.noScale, Seed: fc.seed, Workers: fc.workers,
 	})
 	if err != nil && (errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)) {
@@ -409,7 +409,7 @@ func fit(ctx context.Context, s *spec.Network, tr, va *data.Set, fc fitConfig) (
 	}{{tr, &out.trainCost, &out.trainAcc}, {va, &out.validCost, &out.validAcc}} {
 		x, err := m.Encoder().EncodeSet(part.set)
 		if err != nil {
-			return fitted{}, fmt.Errorf("%w: %w", ErrConfig, err)
+			return fitted{}, fmt.Errorf("%w: %w", ErrOptions, err)
 		}
 		scr, err := trainfit.NewScorer(net, x, part.set, fc.workers)
 		if err != nil {

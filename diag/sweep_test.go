@@ -44,7 +44,7 @@ func TestSweepInteriorWDBC(t *testing.T) {
 	_, sub, err := data.SplitIndices(set, 200.0/569, 3)
 	require.NoError(t, err)
 	lambdas := []float64{0, 0.1, 1, 10, 100, 1000}
-	sw, err := SweepPenalty(context.Background(), parseSpec(t, wdbcNet), set.Subset(sub), lambdas, SweepConfig{
+	sw, err := SweepPenalty(context.Background(), parseSpec(t, wdbcNet), set.Subset(sub), lambdas, SweepOptions{
 		NoScale: true,
 		Limits:  optim.Limits{Iterations: 300},
 	})
@@ -81,7 +81,7 @@ penalty:
   l2: 0.1
 `)
 	set := readSet(t, "iris.csv")
-	sw, err := SweepUnits(context.Background(), s, set, []int{1, 4}, SweepConfig{Holdout: 0.3, Limits: optim.Limits{Iterations: 100}})
+	sw, err := SweepUnits(context.Background(), s, set, []int{1, 4}, SweepOptions{Holdout: 0.3, Limits: optim.Limits{Iterations: 100}})
 	require.NoError(t, err)
 	require.Equal(t, 1, sw.Folds, "folds; sweep = %+v", sw)
 	require.Equal(t, HiddenUnits, sw.Param, "param; sweep = %+v", sw)
@@ -109,29 +109,29 @@ func TestSweepErrors(t *testing.T) {
 		name string
 		run  func() error
 	}{
-		{"no lambdas", func() error { _, err := SweepPenalty(ctx, s, set, nil, SweepConfig{}); return err }},
-		{"negative lambda", func() error { _, err := SweepPenalty(ctx, s, set, []float64{-1}, SweepConfig{}); return err }},
-		{"NaN lambda", func() error { _, err := SweepPenalty(ctx, s, set, []float64{math.NaN()}, SweepConfig{}); return err }},
-		{"one fold", func() error { _, err := SweepPenalty(ctx, s, set, []float64{1}, SweepConfig{Folds: 1}); return err }},
+		{"no lambdas", func() error { _, err := SweepPenalty(ctx, s, set, nil, SweepOptions{}); return err }},
+		{"negative lambda", func() error { _, err := SweepPenalty(ctx, s, set, []float64{-1}, SweepOptions{}); return err }},
+		{"NaN lambda", func() error { _, err := SweepPenalty(ctx, s, set, []float64{math.NaN()}, SweepOptions{}); return err }},
+		{"one fold", func() error { _, err := SweepPenalty(ctx, s, set, []float64{1}, SweepOptions{Folds: 1}); return err }},
 		{"folds and holdout", func() error {
-			_, err := SweepPenalty(ctx, s, set, []float64{1}, SweepConfig{Folds: 3, Holdout: 0.2})
+			_, err := SweepPenalty(ctx, s, set, []float64{1}, SweepOptions{Folds: 3, Holdout: 0.2})
 			return err
 		}},
-		{"holdout 2", func() error { _, err := SweepPenalty(ctx, s, set, []float64{1}, SweepConfig{Holdout: 2}); return err }},
-		{"units without hidden layer", func() error { _, err := SweepUnits(ctx, s, set, []int{2}, SweepConfig{}); return err }},
-		{"nil set", func() error { _, err := SweepPenalty(ctx, s, nil, []float64{1}, SweepConfig{}); return err }},
+		{"holdout 2", func() error { _, err := SweepPenalty(ctx, s, set, []float64{1}, SweepOptions{Holdout: 2}); return err }},
+		{"units without hidden layer", func() error { _, err := SweepUnits(ctx, s, set, []int{2}, SweepOptions{}); return err }},
+		{"nil set", func() error { _, err := SweepPenalty(ctx, s, nil, []float64{1}, SweepOptions{}); return err }},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			assert.ErrorIs(t, tt.run(), ErrConfig)
+			assert.ErrorIs(t, tt.run(), ErrOptions)
 		})
 	}
 	// More folds than rows: data.Folds's own error, wrapped.
-	_, err := SweepPenalty(ctx, s, set.Subset([]int{0, 1, 2}), []float64{1}, SweepConfig{Folds: 5})
+	_, err := SweepPenalty(ctx, s, set.Subset([]int{0, 1, 2}), []float64{1}, SweepOptions{Folds: 5})
 	assert.ErrorIs(t, err, data.ErrFolds, "5 folds of 3 rows")
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	_, err = SweepPenalty(cctx, s, set, []float64{1}, SweepConfig{})
+	_, err = SweepPenalty(cctx, s, set, []float64{1}, SweepOptions{})
 	assert.ErrorIs(t, err, context.Canceled, "cancelled")
 }
 

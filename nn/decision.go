@@ -11,7 +11,7 @@ import (
 // Decision is how a model turns its output into probabilities and classes
 // beyond the trained net: a temperature that calibrates the probabilities
 // and operating thresholds for sigmoid outputs, both chosen on holdout rows
-// (see train.Config). The zero value changes nothing. It is stored in the
+// (see train.Options). The zero value changes nothing. It is stored in the
 // model file, inside the checksum.
 type Decision struct {
 	// Temperature T > 0 divides the output pre-activations before the

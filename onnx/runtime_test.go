@@ -94,7 +94,7 @@ func trainCase(t *testing.T, specText, trainCSV string, iterations int) *nn.Mode
 	s, err := spec.Parse(strings.NewReader(specText))
 	require.NoError(t, err)
 	set := readSet(t, s, trainCSV)
-	res, err := train.Train(context.Background(), s, set, train.Config{Limits: optim.Limits{Iterations: iterations}, Workers: 1})
+	res, err := train.Train(context.Background(), s, set, train.Options{Limits: optim.Limits{Iterations: iterations}, Workers: 1})
 	if err != nil && (res == nil || res.Model == nil) {
 		require.NoError(t, err)
 	}

@@ -27,7 +27,7 @@ type ThresholdRule struct {
 // targets hold.Y: a temperature when cfg.Calibrate, then thresholds by
 // cfg.Thresholds on the calibrated probabilities; and records the holdout
 // figures in sm, the model's summary.
-func decide(model *nn.Model, sm *nn.Summary, params []float64, hx *mat.Dense, hold *data.Set, cfg Config) error {
+func decide(model *nn.Model, sm *nn.Summary, params []float64, hx *mat.Dense, hold *data.Set, cfg Options) error {
 	s := model.Spec()
 	net := model.Net()
 	r, _ := hx.Dims()

@@ -41,10 +41,10 @@ func TestCalibrateLowersECE(t *testing.T) {
 	tr, hold, err := data.Split(rest, 0.5, 17)
 	require.NoError(t, err)
 
-	plain, err := Train(context.Background(), s, tr, Config{Holdout: hold})
+	plain, err := Train(context.Background(), s, tr, Options{Holdout: hold})
 	require.NoError(t, err)
 	assert.True(t, plain.Model.Decision().IsZero())
-	cal, err := Train(context.Background(), s, tr, Config{Holdout: hold, Calibrate: true})
+	cal, err := Train(context.Background(), s, tr, Options{Holdout: hold, Calibrate: true})
 	require.NoError(t, err)
 	T := cal.Model.Decision().Temperature
 	sm := cal.Model.Summary()
@@ -67,7 +67,7 @@ func TestThresholdRuleOnHoldout(t *testing.T) {
 	set := readSet(t, "testdata/wdbc.csv", s.Output.Classes)
 	tr, hold, err := data.Split(set, 0.3, 5)
 	require.NoError(t, err)
-	res, err := Train(context.Background(), s, tr, Config{Holdout: hold, Thresholds: &ThresholdRule{Rule: score.TargetRecall, Target: 0.99}})
+	res, err := Train(context.Background(), s, tr, Options{Holdout: hold, Thresholds: &ThresholdRule{Rule: score.TargetRecall, Target: 0.99}})
 	require.NoError(t, err)
 	m := res.Model
 	require.Len(t, m.Decision().Thresholds, 1)
@@ -102,6 +102,6 @@ func TestThresholdRuleOnHoldout(t *testing.T) {
 	assert.Equal(t, op.Recall, float64(tp)/float64(pos))
 	assert.InDelta(t, op.Precision, float64(tp)/float64(predicted), 1e-15)
 
-	_, err = Train(context.Background(), parseSpec(t, irisSpec), readSet(t, "testdata/iris.csv", nil), Config{Thresholds: &ThresholdRule{}})
-	assert.ErrorIs(t, err, ErrConfig, "no holdout")
+	_, err = Train(context.Background(), parseSpec(t, irisSpec), readSet(t, "testdata/iris.csv", nil), Options{Thresholds: &ThresholdRule{}})
+	assert.ErrorIs(t, err, ErrOptions, "no holdout")
 }

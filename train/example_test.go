@@ -60,7 +60,7 @@ train:
 		fmt.Println(err)
 		return
 	}
-	res, err := train.Train(context.Background(), s, tr, train.Config{Holdout: hold})
+	res, err := train.Train(context.Background(), s, tr, train.Options{Holdout: hold})
 	if err != nil {
 		fmt.Println(err)
 		return

@@ -82,13 +82,13 @@ func TestFaultExtremeFeatures(t *testing.T) {
 	s := parseSpec(t, faultSpec)
 	for _, scale := range []float64{1e300, 1e-300} {
 		set := twoBlobs(60, scale, 1)
-		res, err := Train(context.Background(), s, set, Config{})
+		res, err := Train(context.Background(), s, set, Options{})
 		require.NoError(t, err, "scale %g", scale)
 		requireSound(t, res.Model, set)
 		// The blobs are separable up to a few noisy rows: at least 0.9.
 		assert.GreaterOrEqual(t, res.Model.Summary().TrainAccuracy, 0.9, "scale %g", scale)
 
-		raw, err := Train(context.Background(), s, set, Config{NoScale: true})
+		raw, err := Train(context.Background(), s, set, Options{NoScale: true})
 		if err != nil {
 			t.Logf("scale %g without scaling: %v", scale, err)
 			assert.NotEmpty(t, err.Error())
@@ -115,7 +115,7 @@ func TestFaultSaturatedStart(t *testing.T) {
 		start[i] *= 1000
 	}
 	for _, m := range []optim.Method{&optim.LBFGS{}, &optim.GradientDescent{}, &optim.Adam{Rate: 0.1, Seed: 1}} {
-		res, err := Train(context.Background(), s, set, Config{Method: m, Start: start, Limits: optim.Limits{Iterations: 30}})
+		res, err := Train(context.Background(), s, set, Options{Method: m, Start: start, Limits: optim.Limits{Iterations: 30}})
 		if err != nil {
 			t.Logf("%T: %v", m, err)
 			require.NotNil(t, res, "%T: no result with %v", m, err)
@@ -133,7 +133,7 @@ func TestFaultSaturatedStart(t *testing.T) {
 func TestFaultDivergingStep(t *testing.T) {
 	s := parseSpec(t, strings.Replace(faultSpec, "tanh", "identity", 1))
 	set := twoBlobs(40, 1, 3)
-	res, err := Train(context.Background(), s, set, Config{Method: &optim.GradientDescent{Step: 1e6}, Limits: optim.Limits{Iterations: 200}})
+	res, err := Train(context.Background(), s, set, Options{Method: &optim.GradientDescent{Step: 1e6}, Limits: optim.Limits{Iterations: 200}})
 	require.Error(t, err)
 	assert.ErrorIs(t, err, optim.ErrDiverged)
 	t.Logf("message: %v", err)
@@ -153,7 +153,7 @@ func TestFaultConstantFeature(t *testing.T) {
 	for i := range set.Rows() {
 		set.X.Set(i, 1, 7.5)
 	}
-	res, err := Train(context.Background(), s, set, Config{})
+	res, err := Train(context.Background(), s, set, Options{})
 	require.NoError(t, err)
 	requireSound(t, res.Model, set)
 	require.Len(t, res.Warnings, 1)
@@ -175,7 +175,7 @@ func TestFaultSingleExampleClass(t *testing.T) {
 	y.Set(0, 2, 1) // row 0 is the one example of c
 	set.Y, set.Classes = y, []string{"a", "b", "c"}
 
-	res, err := Train(context.Background(), s, set, Config{})
+	res, err := Train(context.Background(), s, set, Options{})
 	require.NoError(t, err)
 	requireSound(t, res.Model, set)
 
@@ -185,7 +185,7 @@ func TestFaultSingleExampleClass(t *testing.T) {
 		assert.NotEmpty(t, err.Error())
 	} else {
 		assert.Equal(t, 30, tr.Rows()+ho.Rows())
-		res, err := Train(context.Background(), s, tr, Config{Holdout: ho})
+		res, err := Train(context.Background(), s, tr, Options{Holdout: ho})
 		require.NoError(t, err)
 		requireSound(t, res.Model, tr)
 		assert.False(t, math.IsNaN(res.Model.Summary().HoldoutCost))
@@ -219,7 +219,7 @@ func TestFaultConflictingDuplicates(t *testing.T) {
 		y.Set(2*i+1, 1, 1)
 	}
 	set := &data.Set{X: x, Y: y, Classes: []string{"a", "b"}, Features: []string{"f0", "f1"}}
-	res, err := Train(context.Background(), s, set, Config{Limits: optim.Limits{Iterations: 200}})
+	res, err := Train(context.Background(), s, set, Options{Limits: optim.Limits{Iterations: 200}})
 	require.NoError(t, err)
 	requireSound(t, res.Model, set)
 	assert.GreaterOrEqual(t, res.Model.Summary().Cost, math.Ln2-1e-12)
@@ -245,7 +245,7 @@ func TestDeterministicEveryMethod(t *testing.T) {
 		var first []float64
 		for _, procs := range []int{1, 2, 1} {
 			runtime.GOMAXPROCS(procs)
-			res, err := Train(context.Background(), s, set, Config{Method: mk(), Batch: 32, Limits: optim.Limits{Iterations: 15}})
+			res, err := Train(context.Background(), s, set, Options{Method: mk(), Batch: 32, Limits: optim.Limits{Iterations: 15}})
 			if err != nil && !errors.Is(err, optim.ErrDiverged) {
 				require.NoError(t, err, name)
 			}

@@ -25,7 +25,7 @@ func TestTrainLeavesNoGoroutine(t *testing.T) {
 		}
 	}
 	set = set.Subset(idx)
-	_, err := Train(context.Background(), s, set, Config{Workers: 3, Limits: optim.Limits{Iterations: 5}})
+	_, err := Train(context.Background(), s, set, Options{Workers: 3, Limits: optim.Limits{Iterations: 5}})
 	require.NoError(t, err)
 	goleak.VerifyNone(t, before)
 }

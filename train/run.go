@@ -17,7 +17,7 @@ import (
 // observer records (the trace, the lowest holdout cost and its params).
 type run struct {
 	set  *data.Set
-	cfg  Config
+	cfg  Options
 	seed uint64
 
 	prep    *fit.Prepared
@@ -39,7 +39,7 @@ type run struct {
 }
 
 // newRun returns the run of a Train call; its caller must defer close.
-func newRun(set *data.Set, cfg Config, seed uint64) *run {
+func newRun(set *data.Set, cfg Options, seed uint64) *run {
 	return &run{set: set, cfg: cfg, seed: seed, bestCost: math.Inf(1), bestIter: -1}
 }
 
@@ -95,7 +95,7 @@ func (r *run) initialParams() ([]float64, error) {
 		x0 = make([]float64, r.net.NumParams())
 		r.net.Init(x0, r.seed)
 	} else if len(x0) != r.net.NumParams() {
-		return nil, fmt.Errorf("%w: start has %d params, the net has %d", ErrConfig, len(x0), r.net.NumParams())
+		return nil, fmt.Errorf("%w: start has %d params, the net has %d", ErrOptions, len(x0), r.net.NumParams())
 	}
 	return x0, nil
 }

@@ -6,7 +6,7 @@
 // is given, and can keep the params with the lowest holdout cost (early
 // stopping with patience; Prechelt 1998 discusses the criterion). With a
 // holdout it can also calibrate the model and choose its operating
-// thresholds (Config.Calibrate, Config.Thresholds).
+// thresholds (Options.Calibrate, Options.Thresholds).
 package train
 
 import (
@@ -23,9 +23,9 @@ import (
 	"github.com/seine-ml/seine/spec"
 )
 
-// Config sets a training run. Its zero value trains with the spec's `train:`
+// Options sets a training run. Its zero value trains with the spec's `train:`
 // defaults, standardised features and no holdout.
-type Config struct {
+type Options struct {
 	// Method is the optimizer; nil means the one the spec names (with the
 	// spec's rate, and mini-batch shuffles seeded by Seed), or L-BFGS when
 	// it names none.
@@ -97,11 +97,11 @@ type Result struct {
 	BestIter int          // iteration whose params the model holds (KeepBest), else the last
 }
 
-// ErrConfig is wrapped by errors in a Config or in how it fits the data.
-var ErrConfig = fit.ErrConfig
+// ErrOptions is wrapped by errors in a Options or in how it fits the data.
+var ErrOptions = fit.ErrOptions
 
 // DefaultBatch is the mini-batch size, in rows, of momentum and Adam when
-// neither Config.Batch nor the spec's train.batch sets one; the other
+// neither Options.Batch nor the spec's train.batch sets one; the other
 // methods use every row at every step. Mini-batches of 32 rows are common
 // practice and train well on the demos, where full-batch Adam at its
 // default rate stalled below the majority-class share; `seine train` and
@@ -118,8 +118,8 @@ var ErrNotFiniteParams = errors.New("train: params not finite")
 // returns the best model it has together with an error wrapping the cause,
 // so that a caller can still save the last good params: check Result.Model
 // before giving up. The model never holds non-finite params.
-func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Result, error) {
-	if err := checkConfig(s, set, cfg); err != nil {
+func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Options) (*Result, error) {
+	if err := checkOptions(s, set, cfg); err != nil {
 		return nil, err
 	}
 	seed := s.Init.Seed
@@ -171,32 +171,32 @@ func Train(ctx context.Context, s *spec.Network, set *data.Set, cfg Config) (*Re
 	return res, nil
 }
 
-// checkConfig reports how s, set and cfg cannot make a training run: a nil
+// checkOptions reports how s, set and cfg cannot make a training run: a nil
 // spec or set, an invalid spec, rows that do not fit the spec, options
 // that need a holdout without one, thresholds for a softmax output, or
 // negative counts.
-func checkConfig(s *spec.Network, set *data.Set, cfg Config) error {
+func checkOptions(s *spec.Network, set *data.Set, cfg Options) error {
 	if s == nil || set == nil {
-		return fmt.Errorf("%w: nil spec or data set", ErrConfig)
+		return fmt.Errorf("%w: nil spec or data set", ErrOptions)
 	}
 	if err := fit.CheckSpec(s); err != nil {
 		return err
 	}
 	if err := fit.CheckSet(s, set, "training"); err != nil {
-		return fmt.Errorf("%w: %w", ErrConfig, err)
+		return fmt.Errorf("%w: %w", ErrOptions, err)
 	}
 	if cfg.Holdout != nil {
 		if err := fit.CheckSet(s, cfg.Holdout, "holdout"); err != nil {
-			return fmt.Errorf("%w: %w", ErrConfig, err)
+			return fmt.Errorf("%w: %w", ErrOptions, err)
 		}
 	} else if cfg.KeepBest || cfg.Patience > 0 || cfg.Calibrate || cfg.Thresholds != nil {
-		return fmt.Errorf("%w: keeping the best params, patience, calibration and thresholds need holdout rows", ErrConfig)
+		return fmt.Errorf("%w: keeping the best params, patience, calibration and thresholds need holdout rows", ErrOptions)
 	}
 	if cfg.Thresholds != nil && s.Output.Activation != spec.Sigmoid {
-		return fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrConfig)
+		return fmt.Errorf("%w: operating thresholds apply to sigmoid outputs; a softmax model takes the most probable class", ErrOptions)
 	}
 	if cfg.Patience < 0 || cfg.Batch < 0 || cfg.Workers < 0 {
-		return fmt.Errorf("%w: patience, batch and workers must not be negative", ErrConfig)
+		return fmt.Errorf("%w: patience, batch and workers must not be negative", ErrOptions)
 	}
 	return nil
 }

@@ -72,7 +72,7 @@ func TestIrisFolds(t *testing.T) {
 				rest = append(rest, i)
 			}
 		}
-		res, err := Train(context.Background(), s, set.Subset(rest), Config{Holdout: set.Subset(fold)})
+		res, err := Train(context.Background(), s, set.Subset(rest), Options{Holdout: set.Subset(fold)})
 		require.NoError(t, err, "fold %d", k)
 		sum += res.Model.Summary().HoldoutAccuracy
 	}
@@ -109,12 +109,12 @@ func TestWDBC(t *testing.T) {
 	set := readSet(t, "testdata/wdbc.csv", s.Output.Classes)
 	tr, ho, err := data.Split(set, 0.3, 2)
 	require.NoError(t, err)
-	res, err := Train(context.Background(), s, tr, Config{Holdout: ho})
+	res, err := Train(context.Background(), s, tr, Options{Holdout: ho})
 	require.NoError(t, err)
 	t.Logf("wdbc holdout accuracy %.4f after %d iterations", res.Model.Summary().HoldoutAccuracy, res.Run.Iterations)
 	assert.GreaterOrEqual(t, res.Model.Summary().HoldoutAccuracy, 0.95)
 
-	raw, err := Train(context.Background(), s, tr, Config{Holdout: ho, NoScale: true, Limits: optim.Limits{Iterations: 100}})
+	raw, err := Train(context.Background(), s, tr, Options{Holdout: ho, NoScale: true, Limits: optim.Limits{Iterations: 100}})
 	if err != nil {
 		require.NotNil(t, raw, "an early stop must still return the best model: %v", err)
 	}
@@ -138,7 +138,7 @@ func TestDeterministic(t *testing.T) {
 	for _, procs := range []int{1, 2} {
 		old := runtime.GOMAXPROCS(procs)
 		for _, m := range []optim.Method{nil, &optim.Adam{Rate: 0.01, Seed: 3}} {
-			res, err := Train(context.Background(), s, set, Config{Method: m, Batch: 32, Limits: optim.Limits{Iterations: 30}})
+			res, err := Train(context.Background(), s, set, Options{Method: m, Batch: 32, Limits: optim.Limits{Iterations: 30}})
 			require.NoError(t, err)
 			if m != nil {
 				continue
@@ -165,7 +165,7 @@ func TestKeepBestAndPatience(t *testing.T) {
 	set := readSet(t, "testdata/iris.csv", s.Output.Classes)
 	tr, ho, err := data.Split(set, 0.4, 9)
 	require.NoError(t, err)
-	res, err := Train(context.Background(), s, tr, Config{Holdout: ho, KeepBest: true, Patience: 15, Limits: optim.Limits{Iterations: 400}})
+	res, err := Train(context.Background(), s, tr, Options{Holdout: ho, KeepBest: true, Patience: 15, Limits: optim.Limits{Iterations: 400}})
 	require.NoError(t, err)
 	best := math.Inf(1)
 	for _, p := range res.Trace {
@@ -180,14 +180,14 @@ func TestKeepBestAndPatience(t *testing.T) {
 func TestTrainErrors(t *testing.T) {
 	s := parseSpec(t, irisSpec)
 	set := readSet(t, "testdata/iris.csv", s.Output.Classes)
-	_, err := Train(context.Background(), s, set, Config{KeepBest: true})
-	assert.ErrorIs(t, err, ErrConfig)
+	_, err := Train(context.Background(), s, set, Options{KeepBest: true})
+	assert.ErrorIs(t, err, ErrOptions)
 	s2 := s.Clone()
 	s2.Inputs = 3
-	_, err = Train(context.Background(), s2, set, Config{})
+	_, err = Train(context.Background(), s2, set, Options{})
 	assert.ErrorContains(t, err, "4 feature columns, the spec 3 inputs")
-	_, err = Train(context.Background(), s, set, Config{Start: []float64{1}})
-	assert.ErrorIs(t, err, ErrConfig)
+	_, err = Train(context.Background(), s, set, Options{Start: []float64{1}})
+	assert.ErrorIs(t, err, ErrOptions)
 }
 
 // A cancelled run returns the best model so far and an error saying so.
@@ -195,7 +195,7 @@ func TestCancelKeepsModel(t *testing.T) {
 	s := parseSpec(t, irisSpec)
 	set := readSet(t, "testdata/iris.csv", s.Output.Classes)
 	ctx, cancel := context.WithCancel(context.Background())
-	res, err := Train(ctx, s, set, Config{Progress: func(p Progress) bool {
+	res, err := Train(ctx, s, set, Options{Progress: func(p Progress) bool {
 		if p.Iter == 5 {
 			cancel()
 		}

@@ -42,7 +42,7 @@ func crossValidate(t *testing.T, s *spec.Network, set *data.Set) float64 {
 	right := 0
 	for k := range folds {
 		tr, va := set.Subset(data.TrainRows(folds, k)), set.Subset(folds[k])
-		res, err := Train(context.Background(), s, tr, Config{})
+		res, err := Train(context.Background(), s, tr, Options{})
 		require.NoError(t, err)
 		p, err := res.Model.ProbabilitiesSet(va)
 		require.NoError(t, err)
@@ -150,7 +150,7 @@ train:
 		}
 		return &data.Set{X: x, Y: y, Texts: texts, Features: []string{"x", "c"}, Classes: []string{"a", "b"}}
 	}
-	res, err := Train(context.Background(), s, mk(rows), Config{Holdout: mk(hold), Limits: optim.Limits{Iterations: 5}})
+	res, err := Train(context.Background(), s, mk(rows), Options{Holdout: mk(hold), Limits: optim.Limits{Iterations: 5}})
 	require.NoError(t, err)
 	in := res.Model.Encoder().Inputs()
 	// Training values 1, 2, 3, 4, 5 (one missing): mean 3; filled column
@@ -190,7 +190,7 @@ penalty:
 		y.Set(i, c, 1)
 	}
 	set := &data.Set{X: x, Y: y, Classes: []string{"a", "b"}, Features: []string{"u", "v"}}
-	res, err := Train(context.Background(), s, set, Config{Limits: optim.Limits{Iterations: 2}})
+	res, err := Train(context.Background(), s, set, Options{Limits: optim.Limits{Iterations: 2}})
 	require.NoError(t, err)
 	all := strings.Join(res.Warnings, "\n")
 	for _, w := range []string{`class "b" has only 3 training rows`, "the net has 102 params for 23 training rows", "stopped at the iteration limit (2)"} {
@@ -247,7 +247,7 @@ train:
 		require.NoError(t, err)
 		tp, pos := 0, 0
 		for k := range folds {
-			res, err := Train(context.Background(), s, set.Subset(data.TrainRows(folds, k)), Config{})
+			res, err := Train(context.Background(), s, set.Subset(data.TrainRows(folds, k)), Options{})
 			require.NoError(t, err)
 			va := set.Subset(folds[k])
 			p, err := res.Model.ProbabilitiesSet(va)

@@ -181,26 +181,26 @@ func (f *compareFlags) problemPaths() ([]problemPaths, error) {
 
 // config checks the flags that shape the runs and returns them as the
 // config of every problem (without its Progress and Shard).
-func (f *compareFlags) config() (diag.CompareConfig, error) {
+func (f *compareFlags) config() (diag.CompareOptions, error) {
 	opts, err := parseOptimizers(*f.optimizers)
 	if err != nil {
-		return diag.CompareConfig{}, err
+		return diag.CompareOptions{}, err
 	}
 	switch {
 	case *f.iterations < 0:
-		return diag.CompareConfig{}, usagef("-iterations %d: want ≥ 0", *f.iterations)
+		return diag.CompareOptions{}, usagef("-iterations %d: want ≥ 0", *f.iterations)
 	case !(*f.evaluations >= 0) || math.IsInf(*f.evaluations, 1):
-		return diag.CompareConfig{}, usagef("-evaluations %g: want a number ≥ 0", *f.evaluations)
+		return diag.CompareOptions{}, usagef("-evaluations %g: want a number ≥ 0", *f.evaluations)
 	case *f.seeds < 1:
-		return diag.CompareConfig{}, usagef("-seeds %d: want ≥ 1", *f.seeds)
+		return diag.CompareOptions{}, usagef("-seeds %d: want ≥ 1", *f.seeds)
 	case !(*f.holdout >= 0 && *f.holdout < 1):
-		return diag.CompareConfig{}, usagef("-holdout %g: want a fraction in [0, 1)", *f.holdout)
+		return diag.CompareOptions{}, usagef("-holdout %g: want a fraction in [0, 1)", *f.holdout)
 	case *f.batch < 0:
-		return diag.CompareConfig{}, usagef("-batch %d: want ≥ 0", *f.batch)
+		return diag.CompareOptions{}, usagef("-batch %d: want ≥ 0", *f.batch)
 	case !(*f.target > 0) || math.IsInf(*f.target, 1):
-		return diag.CompareConfig{}, usagef("-target %g: want a fraction > 0", *f.target)
+		return diag.CompareOptions{}, usagef("-target %g: want a fraction > 0", *f.target)
 	}
-	return diag.CompareConfig{
+	return diag.CompareOptions{
 		Optimizers: opts,
 		Limits:     optim.Limits{Iterations: *f.iterations, Evaluations: *f.evaluations},
 		Batch:      *f.batch,
@@ -241,7 +241,7 @@ func (f *compareFlags) outputs(pairs []problemPaths) (outputs, error) {
 // -shard, the shard's part of it), reporting progress and warnings on
 // standard error. It returns the problem's name, the comparison and, with
 // -shard, the problem as the part describes it.
-func compareProblem(ctx context.Context, e *env, f *compareFlags, cfg diag.CompareConfig, p problemPaths, i, n int) (string, *diag.Comparison, partProblem, error) {
+func compareProblem(ctx context.Context, e *env, f *compareFlags, cfg diag.CompareOptions, p problemPaths, i, n int) (string, *diag.Comparison, partProblem, error) {
 	s, err := loadSpec(ctx, p.spec)
 	if err != nil {
 		return "", nil, partProblem{}, err

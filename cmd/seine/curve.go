@@ -86,7 +86,7 @@ func runCurve(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	pr := progressFor(e, *quiet, "curve", func(f diag.FitDone) string { return fmt.Sprintf("%d rows", f.Rows) })
-	c, err := diag.LearningCurve(ctx, s, set, diag.CurveConfig{
+	c, err := diag.LearningCurve(ctx, s, set, diag.CurveOptions{
 		Steps: *steps, Holdout: *holdout, Seed: *seed, NoScale: !*standardize, SpecPenalty: *specPenalty,
 		Limits: optim.Limits{Iterations: *iterations}, Shard: so.shard, Progress: pr.fit,
 	})

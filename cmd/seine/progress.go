@@ -44,7 +44,7 @@ func newProgress(w io.Writer, terminal bool, limit int) *progress {
 	return &progress{w: w, terminal: terminal, limit: max(limit, 1), start: time.Now()}
 }
 
-// step records iteration p; it is the train.Config.Progress callback.
+// step records iteration p; it is the train.Options.Progress callback.
 func (pr *progress) step(p train.Progress) bool {
 	if pr.w == nil {
 		return false

@@ -98,7 +98,7 @@ func runReport(ctx context.Context, e *env, args []string) error {
 	for _, w := range rep.Warnings {
 		fmt.Fprintf(e.stderr, "seine report: warning: %s\n", w)
 	}
-	im, err := diag.PermutationImportance(ctx, m, set, diag.ImportanceConfig{Repeats: *repeats, Seed: *seed, Thresholds: thresholds})
+	im, err := diag.PermutationImportance(ctx, m, set, diag.ImportanceOptions{Repeats: *repeats, Seed: *seed, Thresholds: thresholds})
 	if err != nil {
 		return prefixLines(*dataPath, err)
 	}

@@ -116,7 +116,7 @@ func runSweep(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	cfg := diag.SweepConfig{
+	cfg := diag.SweepOptions{
 		Folds: *folds, Holdout: *holdout, Seed: *seed, NoScale: !*standardize,
 		Limits: optim.Limits{Iterations: *iterations}, Shard: so.shard,
 	}

@@ -144,7 +144,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 			return fmt.Errorf("%s: -holdout %g of %d rows: %w", f.data, f.holdout, set.Rows(), err)
 		}
 	}
-	cfg := train.Config{
+	cfg := train.Options{
 		Holdout:  hold,
 		KeepBest: f.keepBest,
 		Patience: f.patience,

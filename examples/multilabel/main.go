@@ -106,7 +106,7 @@ func fit(ctx context.Context, specPath, dataPath string) (*outcome, error) {
 	if err != nil {
 		return nil, err
 	}
-	res, err := train.Train(ctx, s, tr, train.Config{Holdout: ho})
+	res, err := train.Train(ctx, s, tr, train.Options{Holdout: ho})
 	if err != nil {
 		return nil, err
 	}

@@ -21,9 +21,9 @@ import (
 	"github.com/seine-ml/seine/spec"
 )
 
-// ErrConfig is wrapped by errors in a training configuration or in how it
-// fits the data; train.ErrConfig is the same error.
-var ErrConfig = errors.New("train: bad configuration")
+// ErrOptions is wrapped by errors in a training configuration or in how it
+// fits the data; train.ErrOptions is the same error.
+var ErrOptions = errors.New("train: bad configuration")
 
 // MethodFor returns the optim method that a spec's optimizer name stands
 // for, with the learning rate set where the method has one (0 keeps the
@@ -42,7 +42,7 @@ func MethodFor(o spec.Optimizer, rate float64, seed uint64) (optim.Method, error
 	case spec.Adam:
 		return &optim.Adam{Rate: rate, Seed: seed}, nil
 	}
-	return nil, fmt.Errorf("%w: unknown optimizer %v", ErrConfig, o)
+	return nil, fmt.Errorf("%w: unknown optimizer %v", ErrOptions, o)
 }
 
 // Prepared is a training set made ready for a net: the encoder fitted on
@@ -62,15 +62,15 @@ type Prepared struct {
 func Prepare(s *spec.Network, set, holdout *data.Set, noScale bool) (*Prepared, error) {
 	enc, warn, err := encode.Fit(s, set, encode.Options{NoScale: noScale})
 	if err != nil {
-		return nil, fmt.Errorf("%w: fitting the encoder on the training rows: %w", ErrConfig, err)
+		return nil, fmt.Errorf("%w: fitting the encoder on the training rows: %w", ErrOptions, err)
 	}
 	p := &Prepared{Encoder: enc, Spec: enc.Resolve(s), Warnings: warn}
 	if p.X, err = enc.EncodeSet(set); err != nil {
-		return nil, fmt.Errorf("%w: training rows: %w", ErrConfig, err)
+		return nil, fmt.Errorf("%w: training rows: %w", ErrOptions, err)
 	}
 	if holdout != nil {
 		if p.HoldoutX, err = enc.EncodeSet(holdout); err != nil {
-			return nil, fmt.Errorf("%w: holdout rows: %w", ErrConfig, err)
+			return nil, fmt.Errorf("%w: holdout rows: %w", ErrOptions, err)
 		}
 	}
 	return p, nil

@@ -62,7 +62,7 @@ output:
 	rep, err := score.Evaluate(&p, y, m.Classes(), score.Options{})
 	require.NoError(t, err)
 	set := &data.Set{X: x, Y: y, Classes: m.Classes(), Features: m.Features()}
-	im, err := diag.PermutationImportance(context.Background(), m, set, diag.ImportanceConfig{Repeats: 3})
+	im, err := diag.PermutationImportance(context.Background(), m, set, diag.ImportanceOptions{Repeats: 3})
 	require.NoError(t, err)
 	rk := rep.Ranking.PerClass[0]
 	return &Page{Model: m, ModelFile: "tiny.seine.json", Report: rep, Importance: im,

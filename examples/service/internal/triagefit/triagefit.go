@@ -50,7 +50,7 @@ func Run(ctx context.Context, specYAML, csv io.Reader) (*Fit, error) {
 	if err != nil {
 		return nil, err
 	}
-	res, err := train.Train(ctx, s, tr, train.Config{Holdout: ho})
+	res, err := train.Train(ctx, s, tr, train.Options{Holdout: ho})
 	if err != nil {
 		return nil, err
 	}
