@@ -95,10 +95,10 @@ type TracePoint struct {
 	// Evaluations so far, counted as optim.Minimize counts them: a pass
 	// over all m training rows counts 1, a batch of b rows b/m.
 	Evaluations float64
-	// Seconds of wall time since the run started, without the time spent
-	// in Compare's observer (holdout scoring, the full cost of batch
+	// Elapsed is the wall time since the run started, without the time
+	// spent in Compare's observer (holdout scoring, the full cost of batch
 	// methods).
-	Seconds float64
+	Elapsed time.Duration
 	// Cost is the full training cost J(x_k), penalty included, in nats.
 	// For momentum and Adam it is computed by the observer after each
 	// epoch over all training rows, outside the count and the clock
@@ -122,14 +122,14 @@ type Run struct {
 	Cost        float64
 	Evaluations float64 // as in TracePoint
 	Iterations  int
-	Seconds     float64 // as in TracePoint, for the whole run
+	Elapsed     time.Duration // as in TracePoint, for the whole run
 	Status      optim.Status
 	// HoldoutCost and HoldoutAccuracy at the returned point; NaN without
 	// a holdout.
 	HoldoutCost, HoldoutAccuracy float64
-	// EvalsToTarget and SecondsToTarget are read at the first trace point
-	// whose cost is at or below the seed's target cost; +Inf when the run
-	// never reached it.
+	// EvalsToTarget and SecondsToTarget (Elapsed in seconds) are read at
+	// the first trace point whose cost is at or below the seed's target
+	// cost; +Inf when the run never reached it.
 	EvalsToTarget, SecondsToTarget float64
 }
 
@@ -508,7 +508,7 @@ func (p *problem) run(ctx context.Context, m optim.Method, batched bool, x0 []fl
 	lim.Observer = func(st optim.Step, xk []float64) bool {
 		t0 := time.Now()
 		tp := TracePoint{
-			Iter: st.Iter, Evaluations: st.Evaluations, Seconds: (st.Elapsed - excluded).Seconds(),
+			Iter: st.Iter, Evaluations: st.Evaluations, Elapsed: st.Elapsed - excluded,
 			Cost: st.Cost, GradNorm: st.GradNorm, HoldoutCost: math.NaN(), HoldoutAccuracy: math.NaN(),
 		}
 		if batched {
@@ -535,7 +535,7 @@ func (p *problem) run(ctx context.Context, m optim.Method, batched bool, x0 []fl
 	}
 	r.Evaluations = res.Evaluations
 	r.Iterations = res.Iterations
-	r.Seconds = max((res.Elapsed - excluded).Seconds(), 0)
+	r.Elapsed = max(res.Elapsed-excluded, 0)
 	r.Status = res.Status
 	r.HoldoutCost, r.HoldoutAccuracy = math.NaN(), math.NaN()
 	if p.hold != nil {
@@ -572,7 +572,7 @@ func (c *Comparison) finish() *Comparison {
 			r.EvalsToTarget, r.SecondsToTarget = math.Inf(1), math.Inf(1)
 			for _, tp := range r.Trace {
 				if tp.Cost <= c.Targets[k] {
-					r.EvalsToTarget, r.SecondsToTarget = tp.Evaluations, tp.Seconds
+					r.EvalsToTarget, r.SecondsToTarget = tp.Evaluations, tp.Elapsed.Seconds()
 					break
 				}
 			}
@@ -596,7 +596,7 @@ func (c *Comparison) finish() *Comparison {
 			Cost:            pick(func(r *Run) float64 { return r.Cost }, false),
 			Evaluations:     pick(func(r *Run) float64 { return r.Evaluations }, false),
 			Iterations:      pick(func(r *Run) float64 { return float64(r.Iterations) }, false),
-			Seconds:         pick(func(r *Run) float64 { return r.Seconds }, false),
+			Seconds:         pick(func(r *Run) float64 { return r.Elapsed.Seconds() }, false),
 			EvalsToTarget:   pick(func(r *Run) float64 { return r.EvalsToTarget }, true),
 			SecondsToTarget: pick(func(r *Run) float64 { return r.SecondsToTarget }, true),
 			HoldoutAccuracy: pick(func(r *Run) float64 { return r.HoldoutAccuracy }, false),

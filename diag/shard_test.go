@@ -167,12 +167,12 @@ func noTimes(c *Comparison) *Comparison {
 	d.Runs = make([][]Run, len(c.Runs))
 	for i := range c.Runs {
 		for _, r := range c.Runs[i] {
-			r.Seconds, r.SecondsToTarget = 0, 0
+			r.Elapsed, r.SecondsToTarget = 0, 0
 			nan(&r.HoldoutCost)
 			nan(&r.HoldoutAccuracy)
 			tr := make([]TracePoint, len(r.Trace))
 			for j, tp := range r.Trace {
-				tp.Seconds = 0
+				tp.Elapsed = 0
 				nan(&tp.HoldoutCost)
 				nan(&tp.HoldoutAccuracy)
 				tr[j] = tp

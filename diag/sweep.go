@@ -80,11 +80,12 @@ type SweepPoint struct {
 	Units  int     // units of the first hidden layer; 0 without one
 	// TrainCost is the mean cross-entropy on the training rows of each
 	// fit, without the penalty (so that it reads on the same scale as
-	// ValidCost); ValidCost the same on the validation rows. Both in nats.
-	TrainCost, ValidCost Stat
-	// TrainAccuracy and ValidAccuracy are shares of rows classified
+	// HoldoutCost); HoldoutCost the same on the rows each fit held out
+	// (its validation fold, or the holdout). Both in nats.
+	TrainCost, HoldoutCost Stat
+	// TrainAccuracy and HoldoutAccuracy are shares of rows classified
 	// right.
-	TrainAccuracy, ValidAccuracy Stat
+	TrainAccuracy, HoldoutAccuracy Stat
 }
 
 // Sweep is the outcome of SweepPenalty or SweepUnits.
@@ -121,8 +122,8 @@ type SweepFit struct {
 	Lambda float64
 	Units  int
 	// Costs and accuracies as in SweepPoint, of this fit alone.
-	TrainCost, ValidCost, TrainAccuracy, ValidAccuracy float64
-	Warnings                                           []string
+	TrainCost, HoldoutCost, TrainAccuracy, HoldoutAccuracy float64
+	Warnings                                               []string
 }
 
 // SweepPenalty trains the net that s describes at each penalty strength
@@ -248,7 +249,7 @@ func sweep(ctx context.Context, param SweepParam, specs []*spec.Network, set *da
 			}
 			sw.Fits = append(sw.Fits, SweepFit{
 				Index: idx, Value: v, Fold: f, Lambda: sp.Penalty.L2, Units: units,
-				TrainCost: r.trainCost, ValidCost: r.validCost, TrainAccuracy: r.trainAcc, ValidAccuracy: r.validAcc,
+				TrainCost: r.trainCost, HoldoutCost: r.validCost, TrainAccuracy: r.trainAcc, HoldoutAccuracy: r.validAcc,
 				Warnings: r.warn,
 			})
 			sw.Warnings = appendNew(sw.Warnings, r.warn...)
@@ -273,16 +274,16 @@ func (sw *Sweep) summarise() {
 	for i := 0; i < len(sw.Fits); i += sw.Folds {
 		var tc, vc, ta, va []float64
 		for _, f := range sw.Fits[i : i+sw.Folds] {
-			tc, vc = append(tc, f.TrainCost), append(vc, f.ValidCost)
-			ta, va = append(ta, f.TrainAccuracy), append(va, f.ValidAccuracy)
+			tc, vc = append(tc, f.TrainCost), append(vc, f.HoldoutCost)
+			ta, va = append(ta, f.TrainAccuracy), append(va, f.HoldoutAccuracy)
 			sw.Warnings = appendNew(sw.Warnings, f.Warnings...)
 		}
 		f := sw.Fits[i]
 		sw.Points = append(sw.Points, SweepPoint{
-			Lambda: f.Lambda, Units: f.Units, TrainCost: statOf(tc), ValidCost: statOf(vc),
-			TrainAccuracy: statOf(ta), ValidAccuracy: statOf(va),
+			Lambda: f.Lambda, Units: f.Units, TrainCost: statOf(tc), HoldoutCost: statOf(vc),
+			TrainAccuracy: statOf(ta), HoldoutAccuracy: statOf(va),
 		})
-		if p := len(sw.Points) - 1; sw.Points[p].ValidCost.Mean < sw.Points[sw.Best].ValidCost.Mean {
+		if p := len(sw.Points) - 1; sw.Points[p].HoldoutCost.Mean < sw.Points[sw.Best].HoldoutCost.Mean {
 			sw.Best = p
 		}
 	}

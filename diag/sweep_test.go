@@ -50,21 +50,21 @@ func TestSweepInteriorWDBC(t *testing.T) {
 	})
 	require.NoError(t, err)
 	for _, p := range sw.Points {
-		t.Logf("λ = %-6g train %.4f  valid %.4f [%.4f, %.4f]  accuracy %.3f", p.Lambda, p.TrainCost.Mean, p.ValidCost.Mean, p.ValidCost.Min, p.ValidCost.Max, p.ValidAccuracy.Mean)
+		t.Logf("λ = %-6g train %.4f  valid %.4f [%.4f, %.4f]  accuracy %.3f", p.Lambda, p.TrainCost.Mean, p.HoldoutCost.Mean, p.HoldoutCost.Min, p.HoldoutCost.Max, p.HoldoutAccuracy.Mean)
 	}
 	assert.Equal(t, DefaultFolds, sw.Folds, "folds")
 	assert.Equal(t, PenaltyL2, sw.Param, "param")
 	b := sw.Best
 	require.NotEqual(t, 0, b, "best λ = %g is at an end of the grid", lambdas[0])
 	require.NotEqual(t, len(lambdas)-1, b, "best λ = %g is at an end of the grid", lambdas[len(lambdas)-1])
-	best := sw.Points[b].ValidCost.Mean
+	best := sw.Points[b].HoldoutCost.Mean
 	for _, end := range []int{0, len(lambdas) - 1} {
-		d := sw.Points[end].ValidCost.Mean - best
+		d := sw.Points[end].HoldoutCost.Mean - best
 		assert.GreaterOrEqual(t, d, 0.1, "validation cost at λ = %g is only %.3g above the best (λ = %g)", lambdas[end], d, lambdas[b])
 	}
 	for i, p := range sw.Points {
 		assert.Equal(t, lambdas[i], p.Lambda, "λ of point %d", i)
-		assert.GreaterOrEqual(t, p.ValidCost.Mean, sw.Points[b].ValidCost.Mean, "Best is not the lowest validation cost (point %d)", i)
+		assert.GreaterOrEqual(t, p.HoldoutCost.Mean, sw.Points[b].HoldoutCost.Mean, "Best is not the lowest validation cost (point %d)", i)
 	}
 }
 
@@ -91,13 +91,13 @@ penalty:
 		assert.Equal(t, u, p.Units, "point %d: units", i)
 		assert.Equal(t, 0.1, p.Lambda, "point %d: λ, want the spec's 0.1", i)
 		// One fit: no spread, SD 0 by definition of statOf.
-		assert.Equal(t, 0.0, p.ValidCost.SD, "point %d: one fit has a spread: %+v", i, p.ValidCost)
-		assert.Equal(t, p.ValidCost.Min, p.ValidCost.Max, "point %d: one fit has a spread: %+v", i, p.ValidCost)
+		assert.Equal(t, 0.0, p.HoldoutCost.SD, "point %d: one fit has a spread: %+v", i, p.HoldoutCost)
+		assert.Equal(t, p.HoldoutCost.Min, p.HoldoutCost.Max, "point %d: one fit has a spread: %+v", i, p.HoldoutCost)
 	}
 	// A small net separates iris to ~0.95 accuracy on held-out rows
 	// (common practice); 0.9 leaves room for a 45-row holdout (one row is
 	// 0.022).
-	assert.GreaterOrEqual(t, sw.Points[1].ValidAccuracy.Mean, 0.9, "4 units: validation accuracy")
+	assert.GreaterOrEqual(t, sw.Points[1].HoldoutAccuracy.Mean, 0.9, "4 units: validation accuracy")
 	assert.Equal(t, 3, s.Hidden[0].Units, "the caller's spec was changed")
 }
 

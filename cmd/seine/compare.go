@@ -635,7 +635,7 @@ func writeTrace(w io.Writer, names []string, comps []*diag.Comparison) error {
 			for _, r := range c.Runs[i] {
 				for _, tp := range r.Trace {
 					rec := []string{r.Method, strconv.FormatUint(r.Seed, 10), strconv.Itoa(tp.Iter),
-						g(tp.Evaluations), g(tp.Seconds), g(tp.Cost), g(tp.GradNorm), g(tp.HoldoutAccuracy)}
+						g(tp.Evaluations), g(tp.Elapsed.Seconds()), g(tp.Cost), g(tp.GradNorm), g(tp.HoldoutAccuracy)}
 					if len(comps) > 1 {
 						rec = append([]string{names[pi]}, rec...)
 					}
@@ -672,7 +672,7 @@ func costPlot(name string, c *diag.Comparison) chart.CostPlot {
 			sec := chart.Series{Name: m}
 			for _, tp := range r.Trace {
 				ev.X, ev.Y = append(ev.X, tp.Evaluations), append(ev.Y, tp.Cost)
-				sec.X, sec.Y = append(sec.X, tp.Seconds), append(sec.Y, tp.Cost)
+				sec.X, sec.Y = append(sec.X, tp.Elapsed.Seconds()), append(sec.Y, tp.Cost)
 			}
 			if len(ev.X) == 0 {
 				continue

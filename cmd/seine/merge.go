@@ -18,6 +18,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/seine-ml/seine/diag"
 	"github.com/seine-ml/seine/internal/ctxio"
@@ -223,6 +224,17 @@ type partProblem struct {
 	Rows       int    `json:"rows"`        // data rows read
 }
 
+// secondsDuration reads a part's seconds back into the duration they were
+// written from: seconds below 2^51 ns (26 days) come back to the
+// nanosecond; what is not a duration reads as 0.
+func secondsDuration(sec float64) time.Duration {
+	ns := math.Round(sec * float64(time.Second))
+	if !(ns >= 0 && ns < math.MaxInt64) {
+		return 0
+	}
+	return time.Duration(ns)
+}
+
 // exact is a float64 written so that it reads back bit for bit: finite
 // values in the shortest form that round-trips, NaN and ±Inf as the
 // strings "NaN", "+Inf" and "-Inf".
@@ -270,16 +282,16 @@ type sweepPart struct {
 }
 
 type sweepFitPart struct {
-	Index         int      `json:"index"`
-	Value         int      `json:"value"`
-	Fold          int      `json:"fold"`
-	L2            exact    `json:"l2"`
-	Units         int      `json:"units"`
-	TrainCost     exact    `json:"train_cost"`
-	ValidCost     exact    `json:"valid_cost"`
-	TrainAccuracy exact    `json:"train_accuracy"`
-	ValidAccuracy exact    `json:"valid_accuracy"`
-	Warnings      []string `json:"warnings"`
+	Index           int      `json:"index"`
+	Value           int      `json:"value"`
+	Fold            int      `json:"fold"`
+	L2              exact    `json:"l2"`
+	Units           int      `json:"units"`
+	TrainCost       exact    `json:"train_cost"`
+	HoldoutCost     exact    `json:"valid_cost"`
+	TrainAccuracy   exact    `json:"train_accuracy"`
+	HoldoutAccuracy exact    `json:"valid_accuracy"`
+	Warnings        []string `json:"warnings"`
 }
 
 type curvePart struct {
@@ -332,8 +344,8 @@ func toSweepPart(sw *diag.Sweep) *sweepPart {
 	for _, f := range sw.Fits {
 		sp.Fits = append(sp.Fits, sweepFitPart{
 			Index: f.Index, Value: f.Value, Fold: f.Fold, L2: exact(f.Lambda), Units: f.Units,
-			TrainCost: exact(f.TrainCost), ValidCost: exact(f.ValidCost),
-			TrainAccuracy: exact(f.TrainAccuracy), ValidAccuracy: exact(f.ValidAccuracy), Warnings: f.Warnings,
+			TrainCost: exact(f.TrainCost), HoldoutCost: exact(f.HoldoutCost),
+			TrainAccuracy: exact(f.TrainAccuracy), HoldoutAccuracy: exact(f.HoldoutAccuracy), Warnings: f.Warnings,
 		})
 	}
 	return sp
@@ -352,8 +364,8 @@ func (sp *sweepPart) sweep(sh diag.Shard) (*diag.Sweep, error) {
 	for _, f := range sp.Fits {
 		sw.Fits = append(sw.Fits, diag.SweepFit{
 			Index: f.Index, Value: f.Value, Fold: f.Fold, Lambda: float64(f.L2), Units: f.Units,
-			TrainCost: float64(f.TrainCost), ValidCost: float64(f.ValidCost),
-			TrainAccuracy: float64(f.TrainAccuracy), ValidAccuracy: float64(f.ValidAccuracy), Warnings: f.Warnings,
+			TrainCost: float64(f.TrainCost), HoldoutCost: float64(f.HoldoutCost),
+			TrainAccuracy: float64(f.TrainAccuracy), HoldoutAccuracy: float64(f.HoldoutAccuracy), Warnings: f.Warnings,
 		})
 	}
 	return sw, nil
@@ -384,10 +396,10 @@ func toComparePart(c *diag.Comparison) comparePart {
 	for i := range c.Runs {
 		for _, r := range c.Runs[i] {
 			rp := runPart{Method: r.Method, Seed: r.Seed, Cost: exact(r.Cost), Evaluations: exact(r.Evaluations),
-				Iterations: r.Iterations, Seconds: exact(r.Seconds), Status: r.Status.String(),
+				Iterations: r.Iterations, Seconds: exact(r.Elapsed.Seconds()), Status: r.Status.String(),
 				HoldoutCost: exact(r.HoldoutCost), HoldoutAccuracy: exact(r.HoldoutAccuracy), Trace: [][]exact{}}
 			for _, tp := range r.Trace {
-				rp.Trace = append(rp.Trace, []exact{exact(tp.Iter), exact(tp.Evaluations), exact(tp.Seconds),
+				rp.Trace = append(rp.Trace, []exact{exact(tp.Iter), exact(tp.Evaluations), exact(tp.Elapsed.Seconds()),
 					exact(tp.Cost), exact(tp.GradNorm), exact(tp.HoldoutCost), exact(tp.HoldoutAccuracy)})
 			}
 			cp.Runs = append(cp.Runs, rp)
@@ -417,13 +429,13 @@ func (cp *comparePart) comparison(sh diag.Shard) (*diag.Comparison, error) {
 			return nil, fmt.Errorf("run %d: status %q is not known", j+1, rp.Status)
 		}
 		r := diag.Run{Method: rp.Method, Seed: rp.Seed, Cost: float64(rp.Cost), Evaluations: float64(rp.Evaluations),
-			Iterations: rp.Iterations, Seconds: float64(rp.Seconds), Status: st,
+			Iterations: rp.Iterations, Elapsed: secondsDuration(float64(rp.Seconds)), Status: st,
 			HoldoutCost: float64(rp.HoldoutCost), HoldoutAccuracy: float64(rp.HoldoutAccuracy)}
 		for t, row := range rp.Trace {
 			if len(row) != len(traceColumns) {
 				return nil, fmt.Errorf("run %d: trace row %d has %d columns, want %d (%s)", j+1, t+1, len(row), len(traceColumns), strings.Join(traceColumns, ", "))
 			}
-			r.Trace = append(r.Trace, diag.TracePoint{Iter: int(row[0]), Evaluations: float64(row[1]), Seconds: float64(row[2]),
+			r.Trace = append(r.Trace, diag.TracePoint{Iter: int(row[0]), Evaluations: float64(row[1]), Elapsed: secondsDuration(float64(row[2])),
 				Cost: float64(row[3]), GradNorm: float64(row[4]), HoldoutCost: float64(row[5]), HoldoutAccuracy: float64(row[6])})
 		}
 		c.Runs[i] = append(c.Runs[i], r)

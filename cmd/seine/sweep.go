@@ -313,9 +313,9 @@ func writeSweepTable(w io.Writer, name string, rows int, sw *diag.Sweep) {
 		out = append(out, []string{
 			strconv.FormatFloat(sweepX(sw, p), 'g', -1, 64),
 			statText(p.TrainCost, "%.4f", sw.Folds),
-			statText(p.ValidCost, "%.4f", sw.Folds),
+			statText(p.HoldoutCost, "%.4f", sw.Folds),
 			statText(p.TrainAccuracy, "%.3f", sw.Folds),
-			statText(p.ValidAccuracy, "%.3f", sw.Folds),
+			statText(p.HoldoutAccuracy, "%.3f", sw.Folds),
 			mark,
 		})
 	}
@@ -326,7 +326,7 @@ func writeSweepTable(w io.Writer, name string, rows int, sw *diag.Sweep) {
 	}
 	fmt.Fprintln(w, "Costs: cross-entropy without the penalty (nats), on the training and the validation rows of each fit.")
 	b := sw.Points[sw.Best]
-	fmt.Fprintf(w, "Best: %s = %s (mean validation cost %.4f nats).\n", col, strconv.FormatFloat(sweepX(sw, b), 'g', -1, 64), b.ValidCost.Mean)
+	fmt.Fprintf(w, "Best: %s = %s (mean validation cost %.4f nats).\n", col, strconv.FormatFloat(sweepX(sw, b), 'g', -1, 64), b.HoldoutCost.Mean)
 }
 
 type jsonStat struct {
@@ -341,12 +341,12 @@ func toJSONStat(s diag.Stat) jsonStat {
 }
 
 type sweepPointJSON struct {
-	L2            float64  `json:"l2"`
-	Units         int      `json:"units"`
-	TrainCost     jsonStat `json:"train_cost"`
-	ValidCost     jsonStat `json:"valid_cost"`
-	TrainAccuracy jsonStat `json:"train_accuracy"`
-	ValidAccuracy jsonStat `json:"valid_accuracy"`
+	L2              float64  `json:"l2"`
+	Units           int      `json:"units"`
+	TrainCost       jsonStat `json:"train_cost"`
+	HoldoutCost     jsonStat `json:"valid_cost"`
+	TrainAccuracy   jsonStat `json:"train_accuracy"`
+	HoldoutAccuracy jsonStat `json:"valid_accuracy"`
 }
 
 type sweepJSON struct {
@@ -367,8 +367,8 @@ func writeSweepJSON(w io.Writer, sweeps []*diag.Sweep, warnings [][]string) erro
 		for _, p := range sw.Points {
 			sj.Points = append(sj.Points, sweepPointJSON{
 				L2: p.Lambda, Units: p.Units,
-				TrainCost: toJSONStat(p.TrainCost), ValidCost: toJSONStat(p.ValidCost),
-				TrainAccuracy: toJSONStat(p.TrainAccuracy), ValidAccuracy: toJSONStat(p.ValidAccuracy),
+				TrainCost: toJSONStat(p.TrainCost), HoldoutCost: toJSONStat(p.HoldoutCost),
+				TrainAccuracy: toJSONStat(p.TrainAccuracy), HoldoutAccuracy: toJSONStat(p.HoldoutAccuracy),
 			})
 		}
 		out = append(out, sj)
@@ -387,10 +387,10 @@ func sweepPlot(name string, sw *diag.Sweep) chart.SweepPlot {
 	for _, p := range sw.Points {
 		sp.Lambda = append(sp.Lambda, sweepX(sw, p))
 		sp.Train = append(sp.Train, p.TrainCost.Mean)
-		sp.Valid = append(sp.Valid, p.ValidCost.Mean)
+		sp.Valid = append(sp.Valid, p.HoldoutCost.Mean)
 		if sw.Folds > 1 {
 			sp.TrainLo, sp.TrainHi = append(sp.TrainLo, p.TrainCost.Min), append(sp.TrainHi, p.TrainCost.Max)
-			sp.ValidLo, sp.ValidHi = append(sp.ValidLo, p.ValidCost.Min), append(sp.ValidHi, p.ValidCost.Max)
+			sp.ValidLo, sp.ValidHi = append(sp.ValidLo, p.HoldoutCost.Min), append(sp.ValidHi, p.HoldoutCost.Max)
 		}
 	}
 	sp.YLabel = "cross-entropy, no penalty (nats)"
