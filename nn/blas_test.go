@@ -5,6 +5,8 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/blas/gonum"
 
@@ -27,9 +29,7 @@ func TestBLASAgrees(t *testing.T) {
 	p := awayFromZero(rng, n.NumParams())
 	eval := func() (float64, []float64) {
 		o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: 256})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		g := make([]float64, len(p))
 		return o.Eval(g, p), g
 	}
@@ -44,16 +44,12 @@ func TestBLASAgrees(t *testing.T) {
 	gemm.UsePortable(prevKernel)
 
 	const tol = 1e-12
-	if d := math.Abs(c - cRef); d > tol*math.Abs(cRef) {
-		t.Errorf("cost %.17g, reference %.17g: relative difference %.3g", c, cRef, d/math.Abs(cRef))
-	}
+	assert.InEpsilon(t, cRef, c, tol, "cost %.17g, reference %.17g", c, cRef)
 	gMax, dMax := 0.0, 0.0
 	for i := range g {
 		gMax = math.Max(gMax, math.Abs(gRef[i]))
 		dMax = math.Max(dMax, math.Abs(g[i]-gRef[i]))
 	}
 	t.Logf("relative difference: cost %.3g, gradient (max norm) %.3g", math.Abs(c-cRef)/math.Abs(cRef), dMax/gMax)
-	if dMax > tol*gMax {
-		t.Errorf("gradient: max difference %.3g, max |g| %.3g: relative %.3g > %g", dMax, gMax, dMax/gMax, tol)
-	}
+	assert.LessOrEqual(t, dMax, tol*gMax, "gradient: max difference %.3g, max |g| %.3g: relative %.3g > %g", dMax, gMax, dMax/gMax, tol)
 }

@@ -1,9 +1,13 @@
 package nn
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"github.com/seine-ml/seine/spec"
 )
@@ -25,14 +29,10 @@ func TestZeroWeights(t *testing.T) {
 			n := mustCompile(t, testSpec(4, []int{5, 3}, spec.Tanh, tt.k))
 			x, y := testData(rand.New(rand.NewPCG(1, 1)), 9, 4, tt.k, false)
 			o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: 4})
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			p := make([]float64, n.NumParams())
 			// Relative 1e-15: nine equal terms summed and divided by 9.
-			if got := o.Eval(nil, p); math.Abs(got-tt.want) > 1e-15*tt.want {
-				t.Errorf("cost = %.17g, want %.17g", got, tt.want)
-			}
+			assert.InEpsilon(t, tt.want, o.Eval(nil, p), 1e-15, "cost")
 		})
 	}
 }
@@ -43,42 +43,36 @@ func TestZeroWeights(t *testing.T) {
 func TestPenaltyRise(t *testing.T) {
 	for _, bias := range []bool{false, true} {
 		for _, k := range []outKind{outSoftmax, outMulti, outBinary} {
-			rng := rand.New(rand.NewPCG(2, 2))
-			s := testSpec(3, []int{4}, spec.Sigmoid, k)
-			x, y := testData(rng, 11, 3, k, false)
-			n0 := mustCompile(t, s)
-			s.Penalty = spec.Penalty{L2: 0.8, Bias: bias}
-			n1 := mustCompile(t, s)
-			o0, err := NewObjective(n0, x, y, ObjectiveOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			o1, err := NewObjective(n1, x, y, ObjectiveOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			p := awayFromZero(rng, n0.NumParams())
-			sq := 0.0
-			for l := 0; l < n0.NumLayers(); l++ {
-				w, b := n0.Block(l)
-				end := b
-				if bias {
-					end = b + n0.sizes[l+1]
+			t.Run(fmt.Sprintf("bias=%v/%v", bias, k), func(t *testing.T) {
+				rng := rand.New(rand.NewPCG(2, 2))
+				s := testSpec(3, []int{4}, spec.Sigmoid, k)
+				x, y := testData(rng, 11, 3, k, false)
+				n0 := mustCompile(t, s)
+				s.Penalty = spec.Penalty{L2: 0.8, Bias: bias}
+				n1 := mustCompile(t, s)
+				o0, err := NewObjective(n0, x, y, ObjectiveOptions{})
+				require.NoError(t, err)
+				o1, err := NewObjective(n1, x, y, ObjectiveOptions{})
+				require.NoError(t, err)
+				p := awayFromZero(rng, n0.NumParams())
+				sq := 0.0
+				for l := 0; l < n0.NumLayers(); l++ {
+					w, b := n0.Block(l)
+					end := b
+					if bias {
+						end = b + n0.sizes[l+1]
+					}
+					for _, v := range p[w:end] {
+						sq += v * v
+					}
 				}
-				for _, v := range p[w:end] {
-					sq += v * v
-				}
-			}
-			want := 0.8 / (2 * 11) * sq
-			rise := o1.Eval(nil, p) - o0.Eval(nil, p)
-			// 1e-12 relative: the two costs (order 1) cancel in the
-			// difference, leaving a few ulps of them against a rise of order 0.1.
-			if math.Abs(rise-want) > 1e-12*want {
-				t.Errorf("bias=%v %v: rise %.17g, want λ/(2m)Σw² = %.17g", bias, k, rise, want)
-			}
-			if l := o1.Loss(p); math.Abs(l-o0.Eval(nil, p)) > 1e-15 {
-				t.Errorf("Loss includes the penalty: %g vs %g", l, o0.Eval(nil, p))
-			}
+				want := 0.8 / (2 * 11) * sq
+				rise := o1.Eval(nil, p) - o0.Eval(nil, p)
+				// 1e-12 relative: the two costs (order 1) cancel in the
+				// difference, leaving a few ulps of them against a rise of order 0.1.
+				assert.InEpsilon(t, want, rise, 1e-12, "rise, want λ/(2m)Σw²")
+				assert.InDelta(t, o0.Eval(nil, p), o1.Loss(p), 1e-15, "Loss includes the penalty")
+			})
 		}
 	}
 }
@@ -90,51 +84,46 @@ func TestPenaltyRise(t *testing.T) {
 // softplus(−1000) + 1000 = 1000) and the softmax row costs lse − z_y = 2000.
 func TestSaturation(t *testing.T) {
 	tests := []struct {
+		name string
 		k    outKind
 		bias []float64 // output biases
 		want float64   // cost per row
 		gb   []float64 // ∂J/∂b on the output: mean of h − y per unit
 	}{
-		{outSoftmax, []float64{1000, -1000, 0}, 2000, []float64{1, -1, 0}},  // every row's class is 1
-		{outMulti, []float64{1000, -1000, 1000}, 2000, []float64{1, -1, 0}}, // targets (0, 1, 1): units 0 and 1 wrong
-		{outBinary, []float64{-1000}, 1000, []float64{-1}},                  // target 1
-		{outSoftmax, []float64{-1000, 1000, 0}, 0, []float64{0, 0, 0}},      // right with certainty
-		{outBinary, []float64{1000}, 0, []float64{0}},                       // right with certainty
+		{"softmax wrong", outSoftmax, []float64{1000, -1000, 0}, 2000, []float64{1, -1, 0}},     // every row's class is 1
+		{"multilabel wrong", outMulti, []float64{1000, -1000, 1000}, 2000, []float64{1, -1, 0}}, // targets (0, 1, 1): units 0 and 1 wrong
+		{"binary wrong", outBinary, []float64{-1000}, 1000, []float64{-1}},                      // target 1
+		{"softmax right", outSoftmax, []float64{-1000, 1000, 0}, 0, []float64{0, 0, 0}},         // right with certainty
+		{"binary right", outBinary, []float64{1000}, 0, []float64{0}},                           // right with certainty
 	}
 	for _, tt := range tests {
-		n := mustCompile(t, testSpec(2, []int{3}, spec.ReLU, tt.k))
-		x, y := testData(rand.New(rand.NewPCG(3, 3)), 5, 2, tt.k, false)
-		y.Zero()
-		for i := 0; i < 5; i++ {
-			switch tt.k {
-			case outMulti:
-				y.Set(i, 1, 1)
-				y.Set(i, 2, 1)
-			default:
-				y.Set(i, 1, 1)
+		t.Run(tt.name, func(t *testing.T) {
+			n := mustCompile(t, testSpec(2, []int{3}, spec.ReLU, tt.k))
+			x, y := testData(rand.New(rand.NewPCG(3, 3)), 5, 2, tt.k, false)
+			y.Zero()
+			for i := 0; i < 5; i++ {
+				switch tt.k {
+				case outMulti:
+					y.Set(i, 1, 1)
+					y.Set(i, 2, 1)
+				default:
+					y.Set(i, 1, 1)
+				}
 			}
-		}
-		o, err := NewObjective(n, x, y, ObjectiveOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		p := make([]float64, n.NumParams())
-		copy(p[n.bOff[1]:], tt.bias)
-		g := make([]float64, len(p))
-		got := o.Eval(g, p)
-		if math.Abs(got-tt.want) > 1e-12*math.Max(1, tt.want) {
-			t.Errorf("%v %v: cost %.17g, want %g", tt.k, tt.bias, got, tt.want)
-		}
-		for i, v := range g {
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				t.Fatalf("%v %v: grad[%d] = %g", tt.k, tt.bias, i, v)
+			o, err := NewObjective(n, x, y, ObjectiveOptions{})
+			require.NoError(t, err)
+			p := make([]float64, n.NumParams())
+			copy(p[n.bOff[1]:], tt.bias)
+			g := make([]float64, len(p))
+			got := o.Eval(g, p)
+			assert.InDelta(t, tt.want, got, 1e-12*math.Max(1, tt.want), "cost with output biases %v", tt.bias)
+			for i, v := range g {
+				require.False(t, math.IsNaN(v) || math.IsInf(v, 0), "grad[%d] = %g", i, v)
 			}
-		}
-		// e^(−1000) underflows to 0 and e^(−2000) too, so h − y is exactly ±1 or 0.
-		for k, want := range tt.gb {
-			if got := g[n.bOff[1]+k]; got != want {
-				t.Errorf("%v %v: ∂J/∂b[%d] = %g, want %g", tt.k, tt.bias, k, got, want)
+			// e^(−1000) underflows to 0 and e^(−2000) too, so h − y is exactly ±1 or 0.
+			for k, want := range tt.gb {
+				assert.Equal(t, want, g[n.bOff[1]+k], "∂J/∂b[%d]", k)
 			}
-		}
+		})
 	}
 }

@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
 )
 
 // ulps returns |got − want| in units of the last place of want.
@@ -30,9 +32,7 @@ func TestExpNegTo(t *testing.T) {
 		want := math.Exp(x)
 		if u := ulps(got[i], want); u > worst || math.IsNaN(u) {
 			worst = u
-			if !(u <= 3) {
-				t.Errorf("expNegTo(%v) = %v, math.Exp %v: %.1f ulp", x, got[i], want, u)
-			}
+			assert.LessOrEqual(t, u, 3.0, "expNegTo(%v) = %v, math.Exp %v: %.1f ulp", x, got[i], want, u)
 		}
 	}
 	t.Logf("worst difference from math.Exp: %.2f ulp", worst)
@@ -55,15 +55,11 @@ func TestActivationsTo(t *testing.T) {
 	for i, z := range zs {
 		if u := ulps(s[i], sigmoid(z)); u > worstS || math.IsNaN(u) {
 			worstS = u
-			if !(u <= 4) {
-				t.Errorf("sigmoidTo(%v) = %v, want %v: %.1f ulp", z, s[i], sigmoid(z), u)
-			}
+			assert.LessOrEqual(t, u, 4.0, "sigmoidTo(%v) = %v, want %v: %.1f ulp", z, s[i], sigmoid(z), u)
 		}
 		if u := ulps(th[i], math.Tanh(z)); u > worstT || math.IsNaN(u) {
 			worstT = u
-			if !(u <= 4) {
-				t.Errorf("tanhTo(%v) = %v, want %v: %.1f ulp", z, th[i], math.Tanh(z), u)
-			}
+			assert.LessOrEqual(t, u, 4.0, "tanhTo(%v) = %v, want %v: %.1f ulp", z, th[i], math.Tanh(z), u)
 		}
 	}
 	t.Logf("worst differences: sigmoid %.2f ulp, tanh %.2f ulp", worstS, worstT)

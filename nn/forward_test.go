@@ -1,10 +1,13 @@
 package nn
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
@@ -19,9 +22,8 @@ func TestForward(t *testing.T) {
 			p := awayFromZero(rng, n.NumParams())
 			ws := n.NewWorkspace(2) // grows to 9 rows
 			h := n.Forward(ws, p, x)
-			if r, c := h.Dims(); r != 9 || c != n.Outputs() {
-				t.Fatalf("Forward is %d×%d, want 9×%d", r, c, n.Outputs())
-			}
+			r, c := h.Dims()
+			require.Equal(t, [2]int{9, n.Outputs()}, [2]int{r, c}, "Forward's rows × columns")
 			// Via a mat.Matrix without raw data: the same bits.
 			h2 := mat.DenseCopyOf(n.Forward(n.NewWorkspace(9), p, x.T().T()))
 			row := make([]float64, n.Outputs())
@@ -35,15 +37,15 @@ func TestForward(t *testing.T) {
 					// order, so ForwardRow equals Forward to the bit; under
 					// OpenBLAS, to a few units of rounding (1e-14 relative
 					// for sums of 70 terms of order 1: common practice).
-					if rowAloneExact && (v != h.At(i, j) || v != h2.At(i, j)) {
-						t.Errorf("row %d unit %d: ForwardRow %.17g, Forward %.17g, %.17g", i, j, v, h.At(i, j), h2.At(i, j))
+					if rowAloneExact {
+						assert.Equal(t, h.At(i, j), v, "row %d unit %d: ForwardRow against Forward", i, j)
+						assert.Equal(t, h2.At(i, j), v, "row %d unit %d: ForwardRow against Forward via mat.Matrix", i, j)
+					} else {
+						assert.InEpsilon(t, v, h.At(i, j), 1e-14, "row %d unit %d: Forward against ForwardRow", i, j)
+						assert.Equal(t, h.At(i, j), h2.At(i, j), "row %d unit %d: Forward via mat.Matrix against Forward", i, j)
 					}
-					if !rowAloneExact && (math.Abs(v-h.At(i, j)) > 1e-14*v || h.At(i, j) != h2.At(i, j)) {
-						t.Errorf("row %d unit %d: ForwardRow %.17g, Forward %.17g, %.17g", i, j, v, h.At(i, j), h2.At(i, j))
-					}
-					if !(v > 0 && v < 1) {
-						t.Errorf("row %d: probability %g outside (0, 1)", i, v)
-					}
+					assert.Greater(t, v, 0.0, "row %d: probability outside (0, 1)", i)
+					assert.Less(t, v, 1.0, "row %d: probability outside (0, 1)", i)
 					sum += v
 					yv := y.At(i, j)
 					if k == outBinary {
@@ -56,19 +58,15 @@ func TestForward(t *testing.T) {
 					}
 				}
 				// Softmax rows sum to 1 up to rounding of three terms.
-				if k == outSoftmax && math.Abs(sum-1) > 4e-16 {
-					t.Errorf("row %d: softmax sums to %.17g", i, sum)
+				if k == outSoftmax {
+					assert.InDelta(t, 1.0, sum, 4e-16, "row %d: softmax sum", i)
 				}
 			}
 			// Loss from the probabilities agrees with the objective's
 			// stable formula (probabilities here are far from 0 and 1).
 			o, err := NewObjective(n, x, y, ObjectiveOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			if got := o.Loss(p); math.Abs(got-loss/9) > 1e-13 {
-				t.Errorf("Loss %.17g, from Forward %.17g", got, loss/9)
-			}
+			require.NoError(t, err)
+			assert.InDelta(t, loss/9, o.Loss(p), 1e-13, "Loss against the loss from Forward")
 		})
 	}
 }
@@ -83,29 +81,26 @@ func TestNoAllocs(t *testing.T) {
 	g := make([]float64, len(p))
 	for _, workers := range []int{1, 2} {
 		o, err := NewObjective(n, x, y, ObjectiveOptions{Batch: 300, Chunk: 128, Workers: workers})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		o.Shuffle(1)
-		cases := map[string]func(){
-			"Eval":           func() { o.Eval(g, p) },
-			"Eval-value":     func() { o.Eval(nil, p) },
-			"EvalBatch":      func() { o.EvalBatch(g, p, 0) },
-			"EvalBatch-last": func() { o.EvalBatch(g, p, 2) },
-			"Loss":           func() { o.Loss(p) },
+		cases := []struct {
+			name string
+			f    func()
+		}{
+			{"Eval", func() { o.Eval(g, p) }},
+			{"Eval-value", func() { o.Eval(nil, p) }},
+			{"EvalBatch", func() { o.EvalBatch(g, p, 0) }},
+			{"EvalBatch-last", func() { o.EvalBatch(g, p, 2) }},
+			{"Loss", func() { o.Loss(p) }},
 		}
-		for name, f := range cases {
-			if a := testing.AllocsPerRun(20, f); a != 0 {
-				t.Errorf("workers %d: %s allocates %g times per call", workers, name, a)
-			}
+		for _, tc := range cases {
+			t.Run(fmt.Sprintf("workers=%d/%s", workers, tc.name), func(t *testing.T) {
+				assert.Zero(t, testing.AllocsPerRun(20, tc.f), "allocations per call")
+			})
 		}
 	}
 	ws := n.NewWorkspace(700)
 	dst := make([]float64, n.Outputs())
-	if a := testing.AllocsPerRun(20, func() { n.Forward(ws, p, x) }); a != 0 {
-		t.Errorf("Forward allocates %g times per call", a)
-	}
-	if a := testing.AllocsPerRun(20, func() { n.ForwardRow(dst, ws, p, x.RawRowView(3)) }); a != 0 {
-		t.Errorf("ForwardRow allocates %g times per call", a)
-	}
+	assert.Zero(t, testing.AllocsPerRun(20, func() { n.Forward(ws, p, x) }), "Forward: allocations per call")
+	assert.Zero(t, testing.AllocsPerRun(20, func() { n.ForwardRow(dst, ws, p, x.RawRowView(3)) }), "ForwardRow: allocations per call")
 }

@@ -1,12 +1,12 @@
 package nn
 
 import (
-	"errors"
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
 
@@ -77,9 +77,7 @@ func (c gradCase) setup(t *testing.T, seed uint64, opt ObjectiveOptions) (*Objec
 	n := mustCompile(t, s)
 	x, y := testData(rng, 7, 4, c.k, c.multiHot)
 	o, err := NewObjective(n, x, y, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return o, awayFromZero(rng, n.NumParams())
 }
 
@@ -91,12 +89,8 @@ func TestGradientFiniteDifference(t *testing.T) {
 			g := make([]float64, len(p))
 			o.Eval(g, p)
 			ref := fd.Gradient(nil, func(q []float64) float64 { return o.Eval(nil, q) }, p, &fd.Settings{Formula: fd.Central})
-			if maxAbs(ref) < 1e-2 {
-				t.Fatalf("reference gradient too small to test: ‖ĝ‖∞ = %g", maxAbs(ref))
-			}
-			if e := relErr(g, ref, fdFloor); e > fdTol {
-				t.Errorf("relative error %.3g > %g", e, fdTol)
-			}
+			require.GreaterOrEqual(t, maxAbs(ref), 1e-2, "reference gradient too small to test: ‖ĝ‖∞")
+			assert.LessOrEqual(t, relErr(g, ref, fdFloor), fdTol, "relative error")
 		})
 	}
 }
@@ -106,16 +100,12 @@ func TestGradientFiniteDifferenceBatch(t *testing.T) {
 		t.Run(c.name(), func(t *testing.T) {
 			o, p := c.setup(t, uint64(100+i), ObjectiveOptions{Batch: 3, Chunk: 2, Workers: 2})
 			o.Shuffle(uint64(i))
-			if o.Batches() != 3 {
-				t.Fatalf("Batches() = %d, want ⌈7/3⌉ = 3", o.Batches())
-			}
+			require.Equal(t, 3, o.Batches(), "Batches(), want ⌈7/3⌉ = 3")
 			g := make([]float64, len(p))
 			for k := 0; k < o.Batches(); k++ {
 				o.EvalBatch(g, p, k)
 				ref := fd.Gradient(nil, func(q []float64) float64 { return o.EvalBatch(nil, q, k) }, p, &fd.Settings{Formula: fd.Central})
-				if e := relErr(g, ref, fdFloor); e > fdTol {
-					t.Errorf("batch %d: relative error %.3g > %g", k, e, fdTol)
-				}
+				assert.LessOrEqual(t, relErr(g, ref, fdFloor), fdTol, "batch %d: relative error", k)
 			}
 		})
 	}
@@ -141,9 +131,7 @@ func TestGradientFiniteDifferenceWeighted(t *testing.T) {
 				g := make([]float64, len(p))
 				o.EvalBatch(g, p, 0)
 				ref := fd.Gradient(nil, func(q []float64) float64 { return o.EvalBatch(nil, q, 0) }, p, &fd.Settings{Formula: fd.Central})
-				if e := relErr(g, ref, fdFloor); e > fdTol {
-					t.Errorf("batch %d: relative error %.3g > %g", batch, e, fdTol)
-				}
+				assert.LessOrEqual(t, relErr(g, ref, fdFloor), fdTol, "batch %d: relative error", batch)
 			}
 		})
 	}
@@ -155,36 +143,32 @@ func TestGradientFiniteDifferenceWeighted(t *testing.T) {
 // term carries one class's weight.
 func TestClassWeightsIdentities(t *testing.T) {
 	for _, k := range []outKind{outSoftmax, outMulti, outBinary} {
-		c := gradCase{g: spec.Tanh, k: k, pen: penaltyCases[0]}
-		nc := 3
-		if k == outBinary {
-			nc = 2
-		}
-		ones, threes := make([]float64, nc), make([]float64, nc)
-		for i := range ones {
-			ones[i], threes[i] = 1, 3
-		}
-		plain, p := c.setup(t, 7, ObjectiveOptions{Chunk: 3})
-		one, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: ones})
-		three, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: threes})
-		g1, g2 := make([]float64, len(p)), make([]float64, len(p))
-		f1, f2 := plain.Eval(g1, p), one.Eval(g2, p)
-		if f1 != f2 {
-			t.Errorf("%v: weights of 1 change the cost: %v vs %v", k, f1, f2)
-		}
-		for i := range g1 {
-			if g1[i] != g2[i] {
-				t.Fatalf("%v: weights of 1 change gradient %d: %v vs %v", k, i, g1[i], g2[i])
+		t.Run(k.String(), func(t *testing.T) {
+			c := gradCase{g: spec.Tanh, k: k, pen: penaltyCases[0]}
+			nc := 3
+			if k == outBinary {
+				nc = 2
 			}
-		}
-		// Multi-label weights apply to the positive side only, so there
-		// the factor is not global.
-		if f3 := three.Eval(nil, p); k != outMulti && math.Abs(f3-3*f1) > 1e-13*f3 {
-			t.Errorf("%v: weights of 3 give cost %v, want 3 × %v", k, f3, f1)
-		}
+			ones, threes := make([]float64, nc), make([]float64, nc)
+			for i := range ones {
+				ones[i], threes[i] = 1, 3
+			}
+			plain, p := c.setup(t, 7, ObjectiveOptions{Chunk: 3})
+			one, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: ones})
+			three, _ := c.setup(t, 7, ObjectiveOptions{Chunk: 3, ClassWeights: threes})
+			g1, g2 := make([]float64, len(p)), make([]float64, len(p))
+			f1, f2 := plain.Eval(g1, p), one.Eval(g2, p)
+			assert.Equal(t, f1, f2, "weights of 1 change the cost")
+			for i := range g1 {
+				require.Equal(t, g1[i], g2[i], "weights of 1 change gradient %d", i)
+			}
+			// Multi-label weights apply to the positive side only, so there
+			// the factor is not global.
+			if k != outMulti {
+				assert.InEpsilon(t, 3*f1, three.Eval(nil, p), 1e-13, "cost with weights of 3, want 3 × the cost with none")
+			}
+		})
 	}
 	_, err := NewObjective(mustCompile(t, testSpec(4, nil, spec.Tanh, outSoftmax)), mat.NewDense(1, 4, nil), mat.NewDense(1, 3, []float64{1, 0, 0}), ObjectiveOptions{ClassWeights: []float64{1, 0, 1}})
-	if !errors.Is(err, ErrOption) {
-		t.Errorf("a zero weight: %v", err)
-	}
+	assert.ErrorIs(t, err, ErrOption, "a zero weight")
 }

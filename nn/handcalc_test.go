@@ -4,6 +4,8 @@ import (
 	"math"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
@@ -56,9 +58,7 @@ func TestWorkedExample(t *testing.T) {
 
 	// Layout from doc.go: W0 row-major, b0, W1 row-major, b1.
 	p := []float64{0.1, 0.2, -0.3, 0.4, 0.5, -0.6, 0.01, 0.02, 0.03, 0.7, -0.8, 0.9, -1.0, 1.1, -1.2, 0.05, -0.05}
-	if len(p) != n.NumParams() {
-		t.Fatalf("NumParams = %d, want (2+1)·3 + (3+1)·2 = 17", n.NumParams())
-	}
+	require.Equal(t, len(p), n.NumParams(), "NumParams, want (2+1)·3 + (3+1)·2 = 17")
 
 	// Plain loops, no BLAS.
 	sig := func(z float64) float64 { return 1 / (1 + math.Exp(-z)) }
@@ -113,27 +113,21 @@ func TestWorkedExample(t *testing.T) {
 		{"∂b0[1]", gb0[1], -0.0598186579232},
 	}
 	for _, h := range hand {
-		if math.Abs(h.got-h.want) > 1e-11 {
-			t.Errorf("plain loops: %s = %.12g, hand %.12g", h.name, h.got, h.want)
-		}
+		t.Run(h.name, func(t *testing.T) {
+			assert.InDelta(t, h.want, h.got, 1e-11, "plain loops against the hand-written number")
+		})
 	}
 
 	x := mat.NewDense(2, 2, []float64{1, 2, -1, 0.5})
 	y := mat.NewDense(2, 2, []float64{1, 0, 0, 1})
 	o, err := NewObjective(n, x, y, ObjectiveOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	g := make([]float64, len(p))
 	got := o.Eval(g, p)
 	// The engine sums in another order than the loops: allow a few ulps
 	// of values of order 1 (1e-14 absolute).
-	if math.Abs(got-J) > 1e-14 {
-		t.Errorf("Eval = %.17g, loops %.17g", got, J)
-	}
+	assert.InDelta(t, J, got, 1e-14, "Eval against the loops")
 	for i := range g {
-		if math.Abs(g[i]-loopGrad[i]) > 1e-14 {
-			t.Errorf("grad[%d] = %.17g, loops %.17g", i, g[i], loopGrad[i])
-		}
+		assert.InDelta(t, loopGrad[i], g[i], 1e-14, "grad[%d] against the loops", i)
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"testing"
 
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
@@ -50,9 +51,7 @@ func testSpec(inputs int, hidden []int, g spec.Activation, k outKind) *spec.Netw
 func mustCompile(t testing.TB, s *spec.Network) *Net {
 	t.Helper()
 	n, err := Compile(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return n
 }
 

@@ -4,6 +4,8 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"go.uber.org/goleak"
 
 	"github.com/seine-ml/seine/spec"
@@ -18,16 +20,10 @@ func TestObjectiveCloseLeavesNoGoroutine(t *testing.T) {
 	n := mustCompile(t, testSpec(4, []int{5}, spec.Tanh, outSoftmax))
 	x, y := testData(rng, 600, 4, outSoftmax, false)
 	o, err := NewObjective(n, x, y, ObjectiveOptions{Workers: 3, Chunk: 64})
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	p := n.NewParams()
 	o.Eval(make([]float64, len(p)), p) // starts the workers
-	if err := o.Close(); err != nil {
-		t.Fatal(err)
-	}
-	if err := o.Close(); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, o.Close())
+	assert.NoError(t, o.Close(), "Close twice")
 	goleak.VerifyNone(t, before)
 }

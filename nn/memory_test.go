@@ -5,6 +5,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
@@ -23,13 +25,9 @@ output:
 func memoryNet(t *testing.T) *Net {
 	t.Helper()
 	s, err := spec.Parse(strings.NewReader(memorySpec))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	n, err := Compile(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return n
 }
 
@@ -45,18 +43,14 @@ func memoryNet(t *testing.T) *Net {
 func TestTrainingBytesFormula(t *testing.T) {
 	n := memoryNet(t)
 	S := packLen(n, 256, true)
-	if productBufLen(24, 16, 256) > 0 && S != 12_336 {
-		t.Errorf("packing scratch %d words, want 12,336", S)
+	if productBufLen(24, 16, 256) > 0 {
+		assert.Equal(t, 12_336, S, "packing scratch words")
 	}
 	base := int64(2_064_072 + 8*2*S)
-	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2}), base; got != want {
-		t.Errorf("TrainingBytes = %d, want %d", got, want)
-	}
+	assert.Equal(t, base, n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2}), "TrainingBytes")
 	// A mini-batch of 100 rows adds the permutation (10,000 words) and the
 	// gathered batch, 100·16 + 100·5 words.
-	if got, want := n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2, Batch: 100}), base+8*(10_000+1_600+500); got != want {
-		t.Errorf("with Batch 100: %d, want %d", got, want)
-	}
+	assert.Equal(t, base+8*(10_000+1_600+500), n.TrainingBytes(10_000, ObjectiveOptions{Workers: 2, Batch: 100}), "with Batch 100")
 }
 
 // TestTrainingBytesMeasured compares the estimate without the data matrices
@@ -82,16 +76,14 @@ func TestTrainingBytesMeasured(t *testing.T) {
 	runtime.GC()
 	runtime.ReadMemStats(&before)
 	o, err := NewObjective(n, x, y, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	o.Eval(grad, params)
 	runtime.ReadMemStats(&after)
 	measured := float64(after.TotalAlloc - before.TotalAlloc)
 	est := float64(n.TrainingBytes(m, opt) - 8*m*(16+5))
 	t.Logf("allocated %.0f bytes, estimate %.0f", measured, est)
-	if r := measured / est; r < 0.75 || r > 1.25 {
-		t.Errorf("allocated %.0f bytes, estimate %.0f (ratio %.3f)", measured, est, r)
-	}
+	r := measured / est
+	assert.GreaterOrEqual(t, r, 0.75, "allocated %.0f bytes, estimate %.0f (ratio %.3f)", measured, est, r)
+	assert.LessOrEqual(t, r, 1.25, "allocated %.0f bytes, estimate %.0f (ratio %.3f)", measured, est, r)
 	runtime.KeepAlive(o)
 }

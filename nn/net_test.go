@@ -1,11 +1,12 @@
 package nn
 
 import (
-	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/spec"
@@ -16,47 +17,37 @@ func TestLayout(t *testing.T) {
 	n := mustCompile(t, s)
 	// Widths 4-5-3-3: (4+1)·5 + (5+1)·3 + (3+1)·3 = 25 + 18 + 12 = 55,
 	// also the count from spec.Network.ParamCount.
-	if n.NumParams() != 55 || n.NumParams() != s.ParamCount() {
-		t.Fatalf("NumParams = %d, want 55 = ParamCount %d", n.NumParams(), s.ParamCount())
-	}
-	if n.NumLayers() != 3 || n.Inputs() != 4 || n.Outputs() != 3 {
-		t.Fatalf("layers %d, inputs %d, outputs %d; want 3, 4, 3", n.NumLayers(), n.Inputs(), n.Outputs())
-	}
+	require.Equal(t, 55, n.NumParams(), "NumParams")
+	require.Equal(t, s.ParamCount(), n.NumParams(), "NumParams against ParamCount")
+	require.Equal(t, 3, n.NumLayers(), "layers")
+	require.Equal(t, 4, n.Inputs(), "inputs")
+	require.Equal(t, 3, n.Outputs(), "outputs")
 	blocks := [][2]int{{0, 20}, {25, 40}, {43, 52}}
 	for l, want := range blocks {
-		if w, b := n.Block(l); w != want[0] || b != want[1] {
-			t.Errorf("Block(%d) = %d, %d; want %d, %d", l, w, b, want[0], want[1])
-		}
+		w, b := n.Block(l)
+		assert.Equal(t, want, [2]int{w, b}, "Block(%d)", l)
 	}
 
 	p := make([]float64, n.NumParams())
 	w := n.Weights(p, 1)
-	if r, c := w.Dims(); r != 3 || c != 5 {
-		t.Fatalf("Weights(1) is %d×%d, want 3×5", r, c)
-	}
+	r, c := w.Dims()
+	require.Equal(t, [2]int{3, 5}, [2]int{r, c}, "Weights(1)'s rows × columns")
 	w.Set(2, 4, 7) // row 2, column 4 → offset 25 + 2·5 + 4 = 39
 	n.Bias(p, 1).SetVec(1, -3)
-	if p[39] != 7 || p[41] != -3 {
-		t.Errorf("views do not write through: p[39] = %g, p[41] = %g", p[39], p[41])
-	}
+	assert.Equal(t, 7.0, p[39], "views do not write through: p[39]")
+	assert.Equal(t, -3.0, p[41], "views do not write through: p[41]")
 	p[25] = 5
-	if n.Weights(p, 1).At(0, 0) != 5 {
-		t.Errorf("view does not read params")
-	}
+	assert.Equal(t, 5.0, n.Weights(p, 1).At(0, 0), "view does not read params")
 
 	q := awayFromZero(rand.New(rand.NewPCG(1, 2)), n.NumParams())
 	ws, bs := n.Unpack(q)
 	ws[0].Set(0, 0, 123) // a copy: q unchanged
-	if q[0] == 123 {
-		t.Errorf("Unpack returned a view, want a copy")
-	}
+	assert.NotEqual(t, 123.0, q[0], "Unpack returned a view, want a copy")
 	ws[0].Set(0, 0, q[0])
 	back := make([]float64, len(q))
 	n.Pack(back, ws, bs)
 	for i := range q {
-		if back[i] != q[i] {
-			t.Fatalf("Pack(Unpack(q))[%d] = %g, want %g", i, back[i], q[i])
-		}
+		require.Equal(t, q[i], back[i], "Pack(Unpack(q))[%d]", i)
 	}
 }
 
@@ -81,33 +72,23 @@ func TestInit(t *testing.T) {
 			b := make([]float64, len(a))
 			n.Init(b, 11)
 			for i := range a {
-				if a[i] != b[i] {
-					t.Fatalf("Init(11) differs from NewParams with seed 11 at %d", i)
-				}
+				require.Equal(t, a[i], b[i], "Init(11) differs from NewParams with seed 11 at %d", i)
 			}
 			n.Init(b, 12)
-			if b[0] == a[0] && b[1] == a[1] {
-				t.Errorf("seeds 11 and 12 gave the same params")
-			}
+			assert.False(t, b[0] == a[0] && b[1] == a[1], "seeds 11 and 12 gave the same params")
 			for l := 0; l < n.NumLayers(); l++ {
 				in, out := float64(n.sizes[l]), float64(n.sizes[l+1])
 				r := tt.bound(in, out)
 				wo, bo := n.Block(l)
 				top := 0.0
 				for _, v := range a[wo:bo] {
-					if math.Abs(v) > r {
-						t.Fatalf("layer %d: |w| = %g > bound %g", l, math.Abs(v), r)
-					}
+					require.LessOrEqual(t, math.Abs(v), r, "layer %d: |w| above the bound", l)
 					top = math.Max(top, math.Abs(v))
 				}
 				// With ≥ 90 draws from U(−r, r), P(max |w| < 0.9r) = 0.9^90 < 1e-4.
-				if top < 0.9*r {
-					t.Errorf("layer %d: largest |w| %g, below 0.9 of the bound %g", l, top, r)
-				}
+				assert.GreaterOrEqual(t, top, 0.9*r, "layer %d: largest |w| below 0.9 of the bound %g", l, r)
 				for _, v := range a[bo : bo+n.sizes[l+1]] {
-					if v != 0 {
-						t.Fatalf("layer %d: bias %g, want 0", l, v)
-					}
+					require.Zero(t, v, "layer %d: bias", l)
 				}
 			}
 		})
@@ -136,26 +117,24 @@ func TestCompileErrors(t *testing.T) {
 		t.Run(tt.name, func(t *testing.T) {
 			s := good()
 			tt.modify(s)
-			if _, err := Compile(s); !errors.Is(err, ErrSpec) {
-				t.Errorf("Compile: err = %v, want ErrSpec", err)
-			}
+			_, err := Compile(s)
+			assert.ErrorIs(t, err, ErrSpec, "Compile")
 		})
 	}
 	s0 := good()
 	s0.Penalty.L2 = -1
 	var se *spec.Error
-	if _, err := Compile(s0); !errors.As(err, &se) || se.Field != "penalty.l2" {
-		t.Errorf("Compile: err = %v, want a *spec.Error for penalty.l2", err)
+	_, err := Compile(s0)
+	if assert.ErrorAs(t, err, &se, "Compile: want a *spec.Error for penalty.l2") {
+		assert.Equal(t, "penalty.l2", se.Field, "Compile: the *spec.Error's field")
 	}
-	if _, err := Compile(nil); !errors.Is(err, ErrSpec) {
-		t.Errorf("Compile(nil): err = %v, want ErrSpec", err)
-	}
+	_, err = Compile(nil)
+	assert.ErrorIs(t, err, ErrSpec, "Compile(nil)")
 	s := good()
 	n := mustCompile(t, s)
 	s.Hidden[0].Units = 99 // the net keeps its own copy
-	if n.Spec().Hidden[0].Units != 4 || n.NumParams() != (3+1)*4+(4+1)*3 {
-		t.Errorf("net changed with the caller's spec")
-	}
+	assert.Equal(t, 4, n.Spec().Hidden[0].Units, "net changed with the caller's spec")
+	assert.Equal(t, (3+1)*4+(4+1)*3, n.NumParams(), "net changed with the caller's spec")
 }
 
 func TestObjectiveErrors(t *testing.T) {
@@ -189,15 +168,15 @@ func TestObjectiveErrors(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := NewObjective(n, tt.x, tt.y, tt.opt)
-			if !errors.Is(err, tt.want) {
-				t.Errorf("err = %v, want %v", err, tt.want)
-			}
+			assert.ErrorIs(t, err, tt.want)
 		})
 	}
 	_, err := NewObjective(n, bad(1, 2, math.NaN()), y, ObjectiveOptions{})
 	var ve *ValueError
-	if !errors.As(err, &ve) || ve.Matrix != "x" || ve.Row != 1 || ve.Col != 2 {
-		t.Errorf("err = %#v, want a ValueError at x[1, 2]", err)
+	if assert.ErrorAs(t, err, &ve, "want a ValueError at x[1, 2]") {
+		assert.Equal(t, "x", ve.Matrix, "ValueError's matrix")
+		assert.Equal(t, 1, ve.Row, "ValueError's row")
+		assert.Equal(t, 2, ve.Col, "ValueError's column")
 	}
 }
 
@@ -206,7 +185,7 @@ func TestObjectiveErrors(t *testing.T) {
 // evaluate = 134 + (2·4·8 + 8) + (2·8·3 + 3) + (2·8·3 + 2·8) = 134 + 72 + 51 + 64 = 321.
 func TestFLOPs(t *testing.T) {
 	n := mustCompile(t, testSpec(4, []int{8}, spec.Sigmoid, outSoftmax))
-	if p, e := n.FLOPs(); p != 134 || e != 321 {
-		t.Errorf("FLOPs() = %g, %g; want 134, 321", p, e)
-	}
+	p, e := n.FLOPs()
+	assert.Equal(t, 134.0, p, "FLOPs: predict")
+	assert.Equal(t, 321.0, e, "FLOPs: evaluate")
 }

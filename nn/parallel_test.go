@@ -8,6 +8,9 @@ import (
 	"testing"
 	"time"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
 	"github.com/seine-ml/seine/spec"
 )
 
@@ -27,9 +30,7 @@ func TestWorkersBitIdentical(t *testing.T) {
 					var refCost float64
 					for _, w := range []int{1, 2, 3, 7} {
 						o, err := NewObjective(n, x, y, ObjectiveOptions{Batch: batch, Chunk: chunk, Workers: w})
-						if err != nil {
-							t.Fatal(err)
-						}
+						require.NoError(t, err)
 						o.Shuffle(7)
 						g := make([]float64, len(p))
 						c := o.Eval(g, p)
@@ -43,13 +44,9 @@ func TestWorkersBitIdentical(t *testing.T) {
 							ref, refCost = g, c
 							continue
 						}
-						if math.Float64bits(c) != math.Float64bits(refCost) {
-							t.Errorf("workers %d: cost %.17g, workers 1: %.17g", w, c, refCost)
-						}
+						assert.Equal(t, math.Float64bits(refCost), math.Float64bits(c), "workers %d: cost %.17g, workers 1: %.17g", w, c, refCost)
 						for i := range g {
-							if math.Float64bits(g[i]) != math.Float64bits(ref[i]) {
-								t.Fatalf("workers %d: grad[%d] = %.17g, workers 1: %.17g", w, i, g[i], ref[i])
-							}
+							require.Equal(t, math.Float64bits(ref[i]), math.Float64bits(g[i]), "workers %d: grad[%d] = %.17g, workers 1: %.17g", w, i, g[i], ref[i])
 						}
 					}
 				})
@@ -65,26 +62,22 @@ func TestGOMAXPROCSBitIdentical(t *testing.T) {
 	n := mustCompile(t, testSpec(5, []int{70, 200}, spec.Tanh, outSoftmax)) // wide enough to use several gemm tiles
 	x, y := testData(rng, 300, 5, outSoftmax, false)
 	p := awayFromZero(rng, n.NumParams())
-	eval := func(procs int) (float64, []float64) {
+	eval := func(t *testing.T, procs int) (float64, []float64) {
 		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
 		o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: 64})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		g := make([]float64, len(p))
 		return o.Eval(g, p), g
 	}
-	c1, g1 := eval(1)
+	c1, g1 := eval(t, 1)
 	for _, procs := range []int{2, 5} {
-		c, g := eval(procs)
-		if math.Float64bits(c) != math.Float64bits(c1) {
-			t.Errorf("GOMAXPROCS %d: cost %.17g, GOMAXPROCS 1: %.17g", procs, c, c1)
-		}
-		for i := range g {
-			if math.Float64bits(g[i]) != math.Float64bits(g1[i]) {
-				t.Fatalf("GOMAXPROCS %d: grad[%d] differs", procs, i)
+		t.Run(fmt.Sprintf("GOMAXPROCS=%d", procs), func(t *testing.T) {
+			c, g := eval(t, procs)
+			assert.Equal(t, math.Float64bits(c1), math.Float64bits(c), "cost %.17g, GOMAXPROCS 1: %.17g", c, c1)
+			for i := range g {
+				require.Equal(t, math.Float64bits(g1[i]), math.Float64bits(g[i]), "grad[%d] differs", i)
 			}
-		}
+		})
 	}
 }
 
@@ -100,21 +93,15 @@ func TestChunkSize(t *testing.T) {
 	var g0 []float64
 	for _, chunk := range []int{50, 1, 7, 0} {
 		o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: chunk, Workers: 2})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		g := make([]float64, len(p))
 		c := o.Eval(g, p)
 		if chunk == 50 {
 			c0, g0 = c, g
 			continue
 		}
-		if math.Abs(c-c0) > 1e-13*c0 {
-			t.Errorf("chunk %d: cost %.17g, one chunk %.17g", chunk, c, c0)
-		}
-		if e := relErr(g, g0, 1e-2); e > 1e-13 {
-			t.Errorf("chunk %d: gradient differs by %.3g relative", chunk, e)
-		}
+		assert.InEpsilon(t, c0, c, 1e-13, "chunk %d: cost against one chunk", chunk)
+		assert.LessOrEqual(t, relErr(g, g0, 1e-2), 1e-13, "chunk %d: gradient's relative difference from one chunk", chunk)
 	}
 }
 
@@ -128,12 +115,10 @@ func TestBatchesAverage(t *testing.T) {
 	x, y := testData(rng, 23, 3, outSoftmax, false)
 	p := awayFromZero(rng, n.NumParams())
 	o, err := NewObjective(n, x, y, ObjectiveOptions{Batch: 5, Chunk: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if o.Batches() != 5 || o.Share(4) != 3.0/23 || o.Share(0) != 5.0/23 {
-		t.Fatalf("Batches %d, Share(0) %g, Share(4) %g; want 5, 5/23, 3/23", o.Batches(), o.Share(0), o.Share(4))
-	}
+	require.NoError(t, err)
+	require.Equal(t, 5, o.Batches(), "Batches")
+	require.Equal(t, 5.0/23, o.Share(0), "Share(0)")
+	require.Equal(t, 3.0/23, o.Share(4), "Share(4)")
 	o.Shuffle(3)
 	full := o.Eval(nil, p)
 	g := make([]float64, len(p))
@@ -147,12 +132,8 @@ func TestBatchesAverage(t *testing.T) {
 			sumGrad[i] += o.Share(k) * g[i]
 		}
 	}
-	if math.Abs(sum-full) > 1e-14*full {
-		t.Errorf("Σ Share·J_k = %.17g, J = %.17g", sum, full)
-	}
-	if e := relErr(sumGrad, fullGrad, 1e-2); e > 1e-14 {
-		t.Errorf("Σ Share·∇J_k differs from ∇J by %.3g relative", e)
-	}
+	assert.InEpsilon(t, full, sum, 1e-14, "Σ Share·J_k against J")
+	assert.LessOrEqual(t, relErr(sumGrad, fullGrad, 1e-2), 1e-14, "Σ Share·∇J_k's relative difference from ∇J")
 
 	perm := append([]int(nil), o.perm...)
 	seen := make([]bool, len(perm))
@@ -160,25 +141,19 @@ func TestBatchesAverage(t *testing.T) {
 		seen[r] = true
 	}
 	for r, ok := range seen {
-		if !ok {
-			t.Fatalf("row %d missing from the shuffle %v", r, perm)
-		}
+		require.True(t, ok, "row %d missing from the shuffle %v", r, perm)
 	}
 	o.Shuffle(99)
 	o.Shuffle(3)
 	for i := range perm {
-		if o.perm[i] != perm[i] {
-			t.Fatalf("Shuffle(3) twice gave %v and %v", perm, o.perm)
-		}
+		require.Equal(t, perm[i], o.perm[i], "Shuffle(3) twice gave %v and %v", perm, o.perm)
 	}
 	o.Shuffle(4)
 	same := true
 	for i := range perm {
 		same = same && o.perm[i] == perm[i]
 	}
-	if same {
-		t.Errorf("Shuffle(3) and Shuffle(4) gave the same order")
-	}
+	assert.False(t, same, "Shuffle(3) and Shuffle(4) gave the same order")
 }
 
 // TestWorkersStop: the worker goroutines of an Objective end once the
@@ -190,20 +165,17 @@ func TestWorkersStop(t *testing.T) {
 		n := mustCompile(t, testSpec(3, []int{4}, spec.Tanh, outSoftmax))
 		x, y := testData(rng, 40, 3, outSoftmax, false)
 		o, err := NewObjective(n, x, y, ObjectiveOptions{Chunk: 4, Workers: 4})
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		o.Eval(nil, n.NewParams())
-		if g := runtime.NumGoroutine(); g < before+3 {
-			t.Fatalf("%d goroutines after a parallel Eval, want ≥ %d", g, before+3)
-		}
+		require.GreaterOrEqual(t, runtime.NumGoroutine(), before+3, "goroutines after a parallel Eval")
 	}()
+	remain := 0
 	for range 100 {
 		runtime.GC()
-		if runtime.NumGoroutine() <= before {
+		if remain = runtime.NumGoroutine(); remain <= before {
 			return
 		}
 		time.Sleep(10 * time.Millisecond)
 	}
-	t.Errorf("%d goroutines remain, %d before", runtime.NumGoroutine(), before)
+	assert.LessOrEqual(t, remain, before, "goroutines remain, %d before", before)
 }

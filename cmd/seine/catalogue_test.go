@@ -15,6 +15,9 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // The bad-input catalogue: every file in testdata/bad at the repository
@@ -50,9 +53,7 @@ func catalogueBin(t *testing.T) string {
 			catErr = fmt.Errorf("building seine: %v\n%s", err, out)
 		}
 	})
-	if catErr != nil {
-		t.Fatal(catErr)
-	}
+	require.NoError(t, catErr)
 	return catBin
 }
 
@@ -74,14 +75,12 @@ func runCatalogue(t *testing.T, limit time.Duration, args ...string) catRun {
 	var errb bytes.Buffer
 	cmd.Stderr = &errb
 	err := cmd.Run()
-	if ctx.Err() != nil {
-		t.Fatalf("seine %s: still running after %v", strings.Join(args, " "), limit)
-	}
+	require.NoError(t, ctx.Err(), "seine %s: still running after %v", strings.Join(args, " "), limit)
 	r := catRun{stderr: errb.String()}
 	if ee, ok := err.(*exec.ExitError); ok {
 		r.code = ee.ExitCode()
-	} else if err != nil {
-		t.Fatalf("running seine: %v", err)
+	} else {
+		require.NoError(t, err, "running seine")
 	}
 	if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok && runtime.GOOS == "linux" {
 		r.maxRSS = ru.Maxrss << 10 // kilobytes on Linux
@@ -134,38 +133,25 @@ func checkCase(t *testing.T, c catCase, limit time.Duration) catRun {
 	// The user's earlier output: a good model for train, old predictions
 	// for predict. A failed run must leave it untouched.
 	before, err := os.ReadFile(filepath.Join(badDir, "model_good.seine.json"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(out, before, 0o644); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
+	require.NoError(t, os.WriteFile(out, before, 0o644))
 	r := runCatalogue(t, limit, catArgs(c, out)...)
-	if r.code != c.code {
-		t.Errorf("exit status %d, want %d; stderr:\n%s", r.code, c.code, r.stderr)
-	}
+	assert.Equal(t, c.code, r.code, "exit status; stderr:\n%s", r.stderr)
 	for _, w := range c.want {
 		w = strings.ReplaceAll(w, "{file}", c.file)
-		if !strings.Contains(r.stderr, w) {
-			t.Errorf("message lacks %q:\n%s", w, r.stderr)
-		}
+		assert.Contains(t, r.stderr, w, "message lacks %q", w)
 	}
-	if strings.Contains(r.stderr, "panic") || strings.Contains(r.stderr, "goroutine ") {
-		t.Errorf("the tool panicked:\n%s", r.stderr)
-	}
+	assert.NotContains(t, r.stderr, "panic", "the tool panicked")
+	assert.NotContains(t, r.stderr, "goroutine ", "the tool panicked")
 	after, err := os.ReadFile(out)
-	if err != nil {
-		t.Fatalf("the output file is gone: %v", err)
+	require.NoError(t, err, "the output file is gone")
+	if r.code != 0 {
+		assert.True(t, bytes.Equal(before, after), "a failed %s changed the output file the user had", c.cmd)
 	}
-	if r.code != 0 && !bytes.Equal(before, after) {
-		t.Errorf("a failed %s changed the output file the user had", c.cmd)
+	if r.code == 0 && c.cmd == "train" {
+		assert.False(t, bytes.Equal(before, after), "a successful train did not write its model")
 	}
-	if r.code == 0 && c.cmd == "train" && bytes.Equal(before, after) {
-		t.Errorf("a successful train did not write its model")
-	}
-	if r.maxRSS > maxRSS {
-		t.Errorf("peak resident memory %d MB, want under %d MB", r.maxRSS>>20, maxRSS>>20)
-	}
+	assert.LessOrEqual(t, r.maxRSS, int64(maxRSS), "peak resident memory %d MB, want under %d MB", r.maxRSS>>20, maxRSS>>20)
 	return r
 }
 
@@ -261,27 +247,19 @@ func TestCatalogue(t *testing.T) {
 // of TestCatalogue or a companion file, and is listed in its README.
 func TestCatalogueCommitted(t *testing.T) {
 	src, err := os.ReadFile("catalogue_test.go")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	readme, err := os.ReadFile(filepath.Join(badDir, "README.md"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	entries, err := os.ReadDir(badDir)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for _, e := range entries {
 		n := e.Name()
 		if n == "README.md" {
 			continue
 		}
-		if !bytes.Contains(readme, []byte("`"+n+"`")) {
-			t.Errorf("%s is not listed in testdata/bad/README.md", n)
-		}
-		if n != "ok.yaml" && n != "ok.csv" && !bytes.Contains(src, []byte(`"`+n+`"`)) {
-			t.Errorf("%s is not a case of the catalogue", n)
+		assert.True(t, bytes.Contains(readme, []byte("`"+n+"`")), "%s is not listed in testdata/bad/README.md", n)
+		if n != "ok.yaml" && n != "ok.csv" {
+			assert.True(t, bytes.Contains(src, []byte(`"`+n+`"`)), "%s is not a case of the catalogue", n)
 		}
 	}
 }
@@ -298,17 +276,11 @@ func TestCatalogueGenerated(t *testing.T) {
 	gen := func(name string, write func(w *bufio.Writer)) string {
 		path := filepath.Join(dir, name)
 		f, err := os.Create(path)
-		if err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, err)
 		w := bufio.NewWriterSize(f, 1<<16)
 		write(w)
-		if err := w.Flush(); err != nil {
-			t.Fatal(err)
-		}
-		if err := f.Close(); err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, w.Flush())
+		require.NoError(t, f.Close())
 		return path
 	}
 	const mb = 1 << 20
@@ -381,9 +353,7 @@ func TestCatalogueGenerated(t *testing.T) {
 	// A good model cut at seeded random offsets: every cut is refused as
 	// not a model file, by every command that reads models.
 	good, err := os.ReadFile(bad("model_good.seine.json"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	rng := rand.New(rand.NewPCG(4180, 8259))
 	for k := range 6 {
 		at := rng.IntN(len(good) - 1)
@@ -391,9 +361,7 @@ func TestCatalogueGenerated(t *testing.T) {
 			at = len(good) - 2 // just before the closing brace
 		}
 		path := filepath.Join(dir, fmt.Sprintf("model_cut_%d.seine.json", at))
-		if err := os.WriteFile(path, good[:at], 0o644); err != nil {
-			t.Fatal(err)
-		}
+		require.NoError(t, os.WriteFile(path, good[:at], 0o644))
 		for _, cmd := range []string{"evaluate", "predict", "inspect"} {
 			c := catCase{fmt.Sprintf("model cut at %d, %s", at, cmd), cmd, path, nil, 1, []string{"{file}: ", "not a seine model file"}}
 			t.Run(c.name, func(t *testing.T) { checkCase(t, c, time.Minute) })

@@ -4,7 +4,6 @@ import (
 	"bufio"
 	"bytes"
 	"encoding/json"
-	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -12,6 +11,9 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 
 	"github.com/seine-ml/seine/nn"
 	"github.com/seine-ml/seine/optim"
@@ -45,26 +47,19 @@ func TestTrainErrors(t *testing.T) {
 			before, _ := os.ReadFile(out)
 			args := append([]string{"train", "-spec", tt.spec, "-data", tt.data, "-out", out, "-quiet"}, tt.extra...)
 			r := seine(t, args...)
-			if r.code != 1 {
-				t.Fatalf("status %d, want 1; stderr %q", r.code, r.stderr)
-			}
+			require.Equal(t, 1, r.code, "status; stderr %q", r.stderr)
 			oneLineError(t, r.stderr, append([]string{"seine train: "}, tt.want...)...)
 			after, _ := os.ReadFile(out)
-			if !bytes.Equal(before, after) {
-				t.Errorf("the model at -out changed")
-			}
-			if ents, _ := os.ReadDir(dir); len(ents) != 1 {
-				t.Errorf("the folder of -out holds %d entries, want only the old model", len(ents))
-			}
+			assert.True(t, bytes.Equal(before, after), "the model at -out changed")
+			ents, _ := os.ReadDir(dir)
+			assert.Len(t, ents, 1, "the folder of -out holds more than the old model")
 		})
 	}
 }
 
 func TestTrainUnwritableOut(t *testing.T) {
 	r := seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", filepath.Join(t.TempDir(), "no", "such", "m.json"), "-quiet")
-	if r.code != 1 {
-		t.Fatalf("status %d, want 1; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 1, r.code, "status; stderr %q", r.stderr)
 	oneLineError(t, r.stderr, "-out", "cannot write there")
 
 	// A folder without write permission holding an old model. Root ignores
@@ -76,34 +71,27 @@ func TestTrainUnwritableOut(t *testing.T) {
 	if os.Geteuid() == 0 {
 		cmd.SysProcAttr = &syscall.SysProcAttr{Credential: &syscall.Credential{Uid: 65534, Gid: 65534}}
 		for _, d := range []string{tmpRoot, filepath.Dir(dir), dir} {
-			if err := os.Chmod(d, 0o755); err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, os.Chmod(d, 0o755))
 		}
 	}
-	if err := os.Chmod(dir, 0o555); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, os.Chmod(dir, 0o555))
 	defer os.Chmod(dir, 0o755)
 	var stderr bytes.Buffer
 	cmd.Stderr = &stderr
 	err := cmd.Run()
-	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 1 {
-		t.Fatalf("exit %v, want status 1; stderr %q", err, stderr.String())
-	}
+	var ee *exec.ExitError
+	require.ErrorAs(t, err, &ee, "want status 1; stderr %q", stderr.String())
+	require.Equal(t, 1, ee.ExitCode(), "status; stderr %q", stderr.String())
 	oneLineError(t, stderr.String(), "-out "+out, "cannot write there", "permission denied")
-	if after, _ := os.ReadFile(out); !bytes.Equal(before, after) {
-		t.Errorf("the model at -out changed")
-	}
+	after, _ := os.ReadFile(out)
+	assert.True(t, bytes.Equal(before, after), "the model at -out changed")
 }
 
 func TestTrainRefusesToOverwriteInputs(t *testing.T) {
 	dir := t.TempDir()
 	data := copyFile(t, triageData, dir, "sessions.csv")
 	r := seine(t, "train", "-spec", triageSpec, "-data", data, "-out", data, "-quiet")
-	if r.code != 2 {
-		t.Fatalf("status %d, want 2; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 2, r.code, "status; stderr %q", r.stderr)
 	oneLineError(t, r.stderr, "is the data file", "refusing to overwrite")
 }
 
@@ -114,36 +102,29 @@ func TestTrainOverrides(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "m.seine.json")
 	r := seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", out,
 		"-optimizer", "adam", "-rate", "0.01", "-batch", "500", "-iterations", "4", "-seed", "3", "-holdout", "0.2", "-keep-best")
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "status; stderr %q", r.stderr)
 	m, err := nn.Load(out)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	tr := m.Spec().Train
-	if tr.Optimizer.String() != "adam" || tr.Rate != 0.01 || tr.Batch != 500 || tr.Iterations != 4 || m.Spec().Init.Seed != 3 {
-		t.Errorf("saved spec train section %+v, seed %d; want adam, rate 0.01, batch 500, 4 iterations, seed 3", tr, m.Spec().Init.Seed)
-	}
-	if tr.Tolerance != 1e-6 {
-		t.Errorf("tolerance %g: a flag not set must keep the spec's 1e-6", tr.Tolerance)
-	}
+	assert.Equal(t, "adam", tr.Optimizer.String(), "saved spec train section: optimizer")
+	assert.Equal(t, 0.01, tr.Rate, "saved spec train section: rate")
+	assert.Equal(t, 500, tr.Batch, "saved spec train section: batch")
+	assert.Equal(t, 4, tr.Iterations, "saved spec train section: iterations")
+	assert.Equal(t, uint64(3), m.Spec().Init.Seed, "saved spec: seed")
+	assert.Equal(t, 1e-6, tr.Tolerance, "tolerance: a flag not set must keep the spec's 1e-6")
 	// 3000 rows, holdout 0.2: the largest remainder split gives exactly
 	// round(0.2·3000) = 600 holdout rows (data.Split's documentation).
 	sm := m.Summary()
-	if sm.TrainRows != 2400 || sm.HoldoutRows != 600 || sm.Iterations != 4 || sm.Method != "adam" {
-		t.Errorf("summary %+v", sm)
-	}
+	assert.Equal(t, 2400, sm.TrainRows, "summary %+v", sm)
+	assert.Equal(t, 600, sm.HoldoutRows, "summary %+v", sm)
+	assert.Equal(t, 4, sm.Iterations, "summary %+v", sm)
+	assert.Equal(t, "adam", sm.Method, "summary %+v", sm)
 	for _, w := range []string{"2400 training, 600 holdout", "21 → 24 tanh → 5 softmax, 653 params", "adam, 4 iterations", "reached the iteration limit", "kept"} {
-		if !strings.Contains(r.stdout, w) {
-			t.Errorf("summary lacks %q:\n%s", w, r.stdout)
-		}
+		assert.Contains(t, r.stdout, w, "summary lacks %q", w)
 	}
 	// Plain progress (stderr is not a terminal): the first iteration is
 	// always shown.
-	if !strings.HasPrefix(r.stderr, "iteration 1/4: cost ") {
-		t.Errorf("progress %q", r.stderr)
-	}
+	assert.True(t, strings.HasPrefix(r.stderr, "iteration 1/4: cost "), "progress %q", r.stderr)
 }
 
 // TestTrainInterrupt sends SIGINT to a long run after its first progress
@@ -153,26 +134,16 @@ func TestTrainInterrupt(t *testing.T) {
 	cmd := exec.Command(bin, "train", "-spec", triageSpec, "-data", triageData, "-out", out,
 		"-optimizer", "gd", "-rate", "0.01", "-iterations", "1000000")
 	stderr, err := cmd.StderrPipe()
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	var stdout bytes.Buffer
 	cmd.Stdout = &stdout
-	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, cmd.Start())
 	sc := bufio.NewScanner(stderr)
-	if !sc.Scan() {
-		t.Fatal("no progress line")
-	}
+	require.True(t, sc.Scan(), "no progress line")
 	first := sc.Text()
-	if !strings.HasPrefix(first, "iteration 1/1000000") {
-		t.Errorf("first line %q", first)
-	}
+	assert.True(t, strings.HasPrefix(first, "iteration 1/1000000"), "first line %q", first)
 	sent := time.Now()
-	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, cmd.Process.Signal(syscall.SIGINT))
 	var rest strings.Builder
 	for sc.Scan() {
 		rest.WriteString(sc.Text() + "\n")
@@ -181,40 +152,27 @@ func TestTrainInterrupt(t *testing.T) {
 	took := time.Since(sent)
 	// One gd iteration on 3000 rows takes about a millisecond; 5 s allows
 	// for a loaded machine and the race detector.
-	if took > 5*time.Second {
-		t.Errorf("took %v to stop after SIGINT", took)
+	assert.LessOrEqual(t, took, 5*time.Second, "time to stop after SIGINT")
+	var ee *exec.ExitError
+	if assert.ErrorAs(t, err, &ee, "want status 130 (128 + SIGINT)") {
+		assert.Equal(t, 130, ee.ExitCode(), "status, want 128 + SIGINT")
 	}
-	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 130 {
-		t.Errorf("exit %v, want status 130 (128 + SIGINT)", err)
-	}
-	if !strings.Contains(rest.String(), "interrupted at iteration") || !strings.Contains(rest.String(), "saved the model of iteration") {
-		t.Errorf("stderr after the signal: %q", rest.String())
-	}
+	assert.Contains(t, rest.String(), "interrupted at iteration", "stderr after the signal")
+	assert.Contains(t, rest.String(), "saved the model of iteration", "stderr after the signal")
 	m, err := nn.Load(out)
-	if err != nil {
-		t.Fatalf("the saved model does not load: %v", err)
-	}
-	if m.Summary().Iterations < 1 || m.Summary().Status != optim.Cancelled {
-		t.Errorf("summary %+v", m.Summary())
-	}
-	if !strings.Contains(stdout.String(), "stopped       interrupted") {
-		t.Errorf("summary block %q", stdout.String())
-	}
+	require.NoError(t, err, "the saved model does not load")
+	assert.GreaterOrEqual(t, m.Summary().Iterations, 1, "summary %+v", m.Summary())
+	assert.Equal(t, optim.Cancelled, m.Summary().Status, "summary %+v", m.Summary())
+	assert.Contains(t, stdout.String(), "stopped       interrupted", "summary block")
 }
 
 func TestEvaluate(t *testing.T) {
 	r := seine(t, "evaluate", "-model", baseModel, "-data", triageData, "-json")
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "status; stderr %q", r.stderr)
 	var rep map[string]json.RawMessage
-	if err := json.Unmarshal([]byte(r.stdout), &rep); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &rep))
 	for _, k := range []string{"rows", "accuracy", "cross_entropy", "macro_f1", "classes", "confusion", "per_class"} {
-		if _, ok := rep[k]; !ok {
-			t.Errorf("key %q missing", k)
-		}
+		assert.Contains(t, rep, k, "key %q missing", k)
 	}
 	var got struct {
 		Rows      int      `json:"rows"`
@@ -231,12 +189,10 @@ func TestEvaluate(t *testing.T) {
 			F1        float64 `json:"f1"`
 		} `json:"per_class"`
 	}
-	if err := json.Unmarshal([]byte(r.stdout), &got); err != nil {
-		t.Fatal(err)
-	}
-	if got.Rows != triageRows || len(got.Confusion) != 5 || len(got.PerClass) != 5 {
-		t.Fatalf("rows %d, confusion %d rows, %d classes", got.Rows, len(got.Confusion), len(got.PerClass))
-	}
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &got))
+	require.Equal(t, triageRows, got.Rows, "rows")
+	require.Len(t, got.Confusion, 5, "confusion rows")
+	require.Len(t, got.PerClass, 5, "per-class entries")
 	diag, total := 0, 0
 	for i, row := range got.Confusion {
 		rows, pred := 0, 0
@@ -247,48 +203,40 @@ func TestEvaluate(t *testing.T) {
 		}
 		diag += row[i]
 		c := got.PerClass[i]
-		if c.Rows != rows || c.Predicted != pred || c.Class != got.Classes[i] {
-			t.Errorf("class %s: rows %d predicted %d, confusion gives %d and %d", c.Class, c.Rows, c.Predicted, rows, pred)
-		}
+		assert.Equal(t, rows, c.Rows, "class %s: rows, from the confusion matrix", c.Class)
+		assert.Equal(t, pred, c.Predicted, "class %s: predicted, from the confusion matrix", c.Class)
+		assert.Equal(t, got.Classes[i], c.Class, "class %d's name", i)
 		// Recall is the diagonal share of the class's row (score docs).
-		if math.Abs(c.Recall-float64(row[i])/float64(rows)) > 1e-12 {
-			t.Errorf("class %s: recall %g, confusion gives %d/%d", c.Class, c.Recall, row[i], rows)
-		}
+		assert.InDelta(t, float64(row[i])/float64(rows), c.Recall, 1e-12, "class %s: recall, confusion gives %d/%d", c.Class, row[i], rows)
 	}
 	// Accuracy is the share of the confusion matrix on its diagonal; both
 	// are ratios of small integers, so 1e-12 is rounding only.
-	if total != triageRows || math.Abs(got.Accuracy-float64(diag)/float64(total)) > 1e-12 {
-		t.Errorf("accuracy %g, diagonal %d of %d", got.Accuracy, diag, total)
-	}
+	assert.Equal(t, triageRows, total, "rows in the confusion matrix")
+	assert.InDelta(t, float64(diag)/float64(total), got.Accuracy, 1e-12, "accuracy, diagonal %d of %d", diag, total)
 	// 60 L-BFGS iterations reach about 97% on this synthetic set (measured
 	// 97.4% at 100); 90% leaves room for other platforms' rounding while
 	// still catching a model that did not learn (chance is 51%, the share
 	// of the largest class).
-	if got.Accuracy < 0.9 || !(got.CE > 0 && got.CE < 0.5) {
-		t.Errorf("accuracy %g, cross-entropy %g", got.Accuracy, got.CE)
-	}
+	assert.GreaterOrEqual(t, got.Accuracy, 0.9, "accuracy")
+	assert.Greater(t, got.CE, 0.0, "cross-entropy")
+	assert.Less(t, got.CE, 0.5, "cross-entropy")
 
 	plot := filepath.Join(t.TempDir(), "confusion.svg")
 	r = seine(t, "evaluate", "-model", baseModel, "-data", triageData, "-plot", plot)
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "status; stderr %q", r.stderr)
 	for _, w := range []string{"accuracy", "cross-entropy", "macro F1", "predicted", "monitor", "confusion: true class down"} {
-		if !strings.Contains(r.stdout, w) {
-			t.Errorf("report lacks %q:\n%s", w, r.stdout)
-		}
+		assert.Contains(t, r.stdout, w, "report lacks %q", w)
 	}
-	if b, err := os.ReadFile(plot); err != nil || !bytes.Contains(b, []byte("<svg")) {
-		t.Errorf("plot: %v, %d bytes", err, len(b))
+	b, err := os.ReadFile(plot)
+	if assert.NoError(t, err, "plot") {
+		assert.Contains(t, string(b), "<svg", "plot")
 	}
 }
 
 func TestEvaluateBadModels(t *testing.T) {
 	dir := t.TempDir()
 	good, err := os.ReadFile(baseModel)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	truncated := filepath.Join(dir, "truncated.seine.json")
 	os.WriteFile(truncated, good[:len(good)/2], 0o644)
 	// Change one character inside the base64 params: the JSON stays valid
@@ -318,9 +266,7 @@ func TestEvaluateBadModels(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := seine(t, "evaluate", "-model", tt.model, "-data", tt.data)
-			if r.code != 1 {
-				t.Fatalf("status %d, want 1; stderr %q", r.code, r.stderr)
-			}
+			require.Equal(t, 1, r.code, "status; stderr %q", r.stderr)
 			oneLineError(t, r.stderr, append([]string{"seine evaluate: "}, tt.want...)...)
 		})
 	}
