@@ -63,4 +63,8 @@ func TestActivationsTo(t *testing.T) {
 		}
 	}
 	t.Logf("worst differences: sigmoid %.2f ulp, tanh %.2f ulp", worstS, worstT)
+	// ulps counts +0 and −0 as equal, so the sign of zero is checked on
+	// its own: tanh is odd, tanh(−0) = −0 (IEEE 754 and math.Tanh).
+	assert.True(t, math.Signbit(th[1]), "tanhTo(-0) = %v, want -0", th[1])
+	assert.False(t, math.Signbit(th[0]), "tanhTo(+0) = %v, want +0", th[0])
 }
