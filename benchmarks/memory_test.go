@@ -6,6 +6,8 @@ import (
 	"runtime"
 	"testing"
 
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
 	"github.com/seine-ml/seine/nn"
@@ -35,9 +37,7 @@ func TestTrainingBytes(t *testing.T) {
 				s.Output.Multilabel = false // one unit
 			}
 			n, err := nn.Compile(s)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			p := n.NewParams()
 			g := make([]float64, len(p))
 			xd := make([]float64, c.sz.rows*c.sz.inputs)
@@ -56,9 +56,7 @@ func TestTrainingBytes(t *testing.T) {
 			x := mat.NewDense(c.sz.rows, c.sz.inputs, append([]float64(nil), xd...))
 			y := mat.NewDense(c.sz.rows, c.sz.classes, append([]float64(nil), yd...))
 			o, err := nn.NewObjective(n, x, y, c.opt)
-			if err != nil {
-				t.Fatal(err)
-			}
+			require.NoError(t, err)
 			o.Eval(g, p)
 			if o.Batches() > 1 {
 				o.EvalBatch(g, p, 0)
@@ -67,9 +65,7 @@ func TestTrainingBytes(t *testing.T) {
 			got := int64(after.TotalAlloc - before.TotalAlloc)
 			want := n.TrainingBytes(c.sz.rows, c.opt)
 			t.Logf("TrainingBytes %d, allocated %d (%.1f%%)", want, got, 100*float64(got-want)/float64(want))
-			if d := float64(got-want) / float64(want); d < -0.25 || d > 0.25 {
-				t.Errorf("TrainingBytes %d, allocated %d: off by %.0f%%, want within 25%%", want, got, 100*d)
-			}
+			assert.InEpsilon(t, want, got, 0.25, "TrainingBytes %d, allocated %d: off by %.0f%%, want within 25%%", want, got, 100*float64(got-want)/float64(want))
 
 			// Warm up further first: with OpenBLAS a cgo call that blocks
 			// can make the runtime start an OS thread, which allocates, until
@@ -83,9 +79,7 @@ func TestTrainingBytes(t *testing.T) {
 					o.EvalBatch(g, p, 1)
 				}
 			})
-			if allocs != 0 {
-				t.Errorf("%v allocations per evaluation after warm-up, want 0", allocs)
-			}
+			assert.Zero(t, allocs, "allocations per evaluation after warm-up")
 			runtime.KeepAlive(o)
 		})
 	}

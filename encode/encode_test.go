@@ -365,9 +365,7 @@ func TestGoldenEncodings(t *testing.T) {
 			require.Equal(t, len(want[0]), c)
 			for i := range r {
 				for j := range c {
-					if u.At(i, j) != want[i][j] {
-						t.Fatalf("row %d, unit %d: %v, scikit-learn %v", i, j, u.At(i, j), want[i][j])
-					}
+					require.Equal(t, want[i][j], u.At(i, j), "row %d, unit %d: want scikit-learn's value", i, j)
 				}
 			}
 		})

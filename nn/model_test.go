@@ -130,12 +130,8 @@ func TestPredictAllocatesNothing(t *testing.T) {
 	x := []float64{1, 2, 3}
 	dst := make([]float64, 3)
 	m.Predict(x)
-	if n := testing.AllocsPerRun(200, func() { m.Predict(x) }); n != 0 {
-		t.Errorf("Predict allocates %v times per call, want 0", n)
-	}
-	if n := testing.AllocsPerRun(200, func() { m.Probabilities(dst, x) }); n != 0 {
-		t.Errorf("Probabilities allocates %v times per call, want 0", n)
-	}
+	assert.Zero(t, testing.AllocsPerRun(200, func() { m.Predict(x) }), "Predict allocations per call")
+	assert.Zero(t, testing.AllocsPerRun(200, func() { m.Probabilities(dst, x) }), "Probabilities allocations per call")
 }
 
 // Many goroutines share one model; every answer equals the sequential one.
@@ -166,9 +162,7 @@ func TestModelConcurrent(t *testing.T) {
 	}
 	wg.Wait()
 	close(errs)
-	for e := range errs {
-		t.Fatal(e)
-	}
+	assert.Empty(t, errs, "goroutines that got an answer other than the sequential one")
 }
 
 func encoded(t *testing.T, m *Model) map[string]any {

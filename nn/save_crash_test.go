@@ -75,11 +75,12 @@ func TestSaveKilled(t *testing.T) {
 		// land at every stage of a save (writing, syncing, renaming), in the
 		// first save or a later one.
 		line, err := bufio.NewReader(out).ReadString('\n')
-		if err != nil || !strings.HasPrefix(line, "saving") {
+		started := err == nil && strings.HasPrefix(line, "saving")
+		if !started {
 			cmd.Process.Kill()
 			cmd.Wait()
-			t.Fatalf("child did not start saving: %q, %v", line, err)
 		}
+		require.True(t, started, "child did not start saving: %q, %v", line, err)
 		time.Sleep(time.Duration(rng.Int64N(int64(3*save) + 1)))
 		require.NoError(t, cmd.Process.Signal(syscall.SIGKILL))
 		err = cmd.Wait()
@@ -92,9 +93,7 @@ func TestSaveKilled(t *testing.T) {
 		require.True(t, v == 0 || v == 1, "kill %d: unknown model %d", k, v)
 		loaded[v]++
 		for i := range m.params {
-			if math.Float64bits(m.params[i]) != math.Float64bits(models[v].params[i]) {
-				t.Fatalf("kill %d: param %d differs from model %d's", k, i, v)
-			}
+			require.Equal(t, math.Float64bits(models[v].params[i]), math.Float64bits(m.params[i]), "kill %d: param %d differs from model %d's", k, i, v)
 		}
 		left, err := filepath.Glob(filepath.Join(dir, ".m.seine.json.tmp-*"))
 		require.NoError(t, err)

@@ -42,9 +42,7 @@ func requireTools() bool { return os.Getenv("SEINE_REQUIRE_ONNX") == "1" }
 func missingTool(t *testing.T, format string, a ...any) {
 	t.Helper()
 	msg := fmt.Sprintf(format, a...)
-	if requireTools() {
-		t.Fatalf("%s (SEINE_REQUIRE_ONNX=1, so this is a failure)", msg)
-	}
+	require.False(t, requireTools(), "%s (SEINE_REQUIRE_ONNX=1, so this is a failure)", msg)
 	t.Skip("skipping: " + msg)
 }
 

@@ -112,9 +112,7 @@ func TestWarnings(t *testing.T) {
 		return &Report{Rows: 100, Accuracy: acc, PerClass: classes}
 	}
 	quiet := mk(0.99, Class{Name: "ok", Rows: 90, Precision: 0.99, Recall: 0.99}, Class{Name: "fraud", Rows: 10, Precision: 0.9, Recall: 0.8})
-	if w := Warnings(quiet, "holdout", false); len(w) != 0 {
-		t.Errorf("no warning expected: %q", w)
-	}
+	assert.Empty(t, Warnings(quiet, "holdout", false), "no warning expected")
 	for _, tc := range []struct {
 		name string
 		r    *Report
@@ -131,15 +129,11 @@ func TestWarnings(t *testing.T) {
 			for _, s := range w {
 				found = found || strings.Contains(s, tc.want)
 			}
-			if !found {
-				t.Errorf("warnings %q lack %q", w, tc.want)
-			}
+			assert.True(t, found, "warnings %q lack %q", w, tc.want)
 		})
 	}
 	tilted := mk(0.95, Class{Name: "ok", Rows: 97, Precision: 0.99, Recall: 0.95}, Class{Name: "fraud", Rows: 3, Precision: 0.3, Recall: 1})
 	for _, w := range Warnings(tilted, "holdout", true) {
-		if strings.Contains(w, "largest class") {
-			t.Errorf("a tilted model is not warned for accuracy below the majority share: %q", w)
-		}
+		assert.NotContains(t, w, "largest class", "a tilted model is not warned for accuracy below the majority share")
 	}
 }

@@ -2,10 +2,8 @@ package spec
 
 import (
 	"bytes"
-	"errors"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"testing"
 
@@ -16,9 +14,7 @@ import (
 func parseFile(t *testing.T, path string) (*Network, error) {
 	t.Helper()
 	data, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return Parse(bytes.NewReader(data))
 }
 
@@ -117,15 +113,9 @@ func TestParseGood(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.file, func(t *testing.T) {
 			got, err := parseFile(t, filepath.Join("testdata", "good", tt.file))
-			if err != nil {
-				t.Fatalf("Parse: %v", err)
-			}
-			if !reflect.DeepEqual(got, tt.want) {
-				t.Errorf("Parse:\n got %#v\nwant %#v", got, tt.want)
-			}
-			if err := got.Validate(); err != nil {
-				t.Errorf("Validate of a parsed spec: %v", err)
-			}
+			require.NoError(t, err, "Parse")
+			assert.Equal(t, tt.want, got, "Parse")
+			assert.NoError(t, got.Validate(), "Validate of a parsed spec")
 		})
 	}
 }
@@ -289,25 +279,13 @@ func TestParseBad(t *testing.T) {
 	for _, tt := range badTests {
 		t.Run(tt.name, func(t *testing.T) {
 			n, err := Parse(strings.NewReader(tt.src))
-			if err == nil {
-				t.Fatalf("Parse succeeded: %+v", n)
-			}
+			require.Error(t, err, "Parse succeeded: %+v", n)
 			var e *Error
-			if !errors.As(err, &e) {
-				t.Fatalf("error %v (%T) is not a *Error", err, err)
-			}
-			if l, ok := err.(ErrorList); ok {
-				t.Fatalf("want one problem, got %d:\n%v", len(l), err)
-			}
-			if e.Line != tt.line || e.Column != tt.col || e.Field != tt.field {
-				t.Errorf("got %d:%d %q, want %d:%d %q (%v)", e.Line, e.Column, e.Field, tt.line, tt.col, tt.field, err)
-			}
-			if !errors.Is(err, tt.kind) {
-				t.Errorf("error %v does not wrap %v", err, tt.kind)
-			}
-			if !strings.Contains(err.Error(), tt.substr) {
-				t.Errorf("error %q does not contain %q", err, tt.substr)
-			}
+			require.ErrorAs(t, err, &e)
+			require.IsNotType(t, ErrorList{}, err, "want one problem, got:\n%v", err)
+			assert.Equal(t, []any{tt.line, tt.col, tt.field}, []any{e.Line, e.Column, e.Field}, "line, column, field of %v", err)
+			assert.ErrorIs(t, err, tt.kind)
+			assert.ErrorContains(t, err, tt.substr)
 		})
 	}
 }
@@ -337,12 +315,9 @@ func TestParseBadFiles(t *testing.T) {
 		t.Run(tt.file, func(t *testing.T) {
 			_, err := parseFile(t, filepath.Join("testdata", "bad", tt.file))
 			var e *Error
-			if !errors.As(err, &e) {
-				t.Fatalf("error %v (%T) is not a *Error", err, err)
-			}
-			if e.Line != tt.line || e.Column != tt.col || e.Field != tt.field || !errors.Is(err, tt.kind) {
-				t.Errorf("got %v at %d:%d %q; want %v at %d:%d %q", e.Err, e.Line, e.Column, e.Field, tt.kind, tt.line, tt.col, tt.field)
-			}
+			require.ErrorAs(t, err, &e)
+			assert.Equal(t, []any{tt.line, tt.col, tt.field}, []any{e.Line, e.Column, e.Field}, "line, column, field of %v", e.Err)
+			assert.ErrorIs(t, err, tt.kind)
 		})
 	}
 }
@@ -352,9 +327,7 @@ func TestParseBadFiles(t *testing.T) {
 func TestParseSeveral(t *testing.T) {
 	_, err := parseFile(t, filepath.Join("testdata", "bad", "several.yaml"))
 	var list ErrorList
-	if !errors.As(err, &list) {
-		t.Fatalf("want an ErrorList, got %T: %v", err, err)
-	}
+	require.ErrorAs(t, err, &list)
 	want := []struct {
 		line, col int
 		field     string
@@ -373,19 +346,14 @@ func TestParseSeveral(t *testing.T) {
 		{18, 9, "train.rate", ErrRange},
 		{19, 14, "train.optimizer", ErrUnknownName},
 	}
-	if len(list) != len(want) {
-		t.Fatalf("got %d problems, want %d:\n%v", len(list), len(want), err)
-	}
+	require.Len(t, list, len(want), "%v", err)
 	for i, w := range want {
 		e := list[i]
-		if e.Line != w.line || e.Column != w.col || e.Field != w.field || !errors.Is(e, w.kind) {
-			t.Errorf("problem %d: got %v (%d:%d %q), want %v at %d:%d %q", i, e, e.Line, e.Column, e.Field, w.kind, w.line, w.col, w.field)
-		}
+		assert.Equal(t, []any{w.line, w.col, w.field}, []any{e.Line, e.Column, e.Field}, "problem %d: %v", i, e)
+		assert.ErrorIs(t, e, w.kind, "problem %d", i)
 	}
 	for _, kind := range []error{ErrVersion, ErrUnknownField, ErrDuplicate} {
-		if !errors.Is(err, kind) {
-			t.Errorf("errors.Is(list, %v) = false", kind)
-		}
+		assert.ErrorIs(t, err, kind, "the list")
 	}
 }
 
@@ -423,22 +391,21 @@ func TestParseSeveralTyped(t *testing.T) {
 
 func TestErrorFormat(t *testing.T) {
 	tests := []struct {
+		name string
 		e    *Error
 		want string
 	}{
-		{&Error{Line: 3, Column: 17, Field: "hidden[1].activation", Err: newDetail(ErrUnknownName, "unknown activation %q", "tanhh")},
+		{"all parts", &Error{Line: 3, Column: 17, Field: "hidden[1].activation", Err: newDetail(ErrUnknownName, "unknown activation %q", "tanhh")},
 			`3:17: hidden[1].activation: unknown activation "tanhh"`},
-		{&Error{Line: 3, Err: newDetail(ErrSyntax, "syntax: x")}, "3: syntax: x"},
-		{&Error{Field: "inputs", Err: newDetail(ErrRange, "bad")}, "inputs: bad"},
-		{&Error{Err: ErrEmpty}, "spec: empty document"},
+		{"line only", &Error{Line: 3, Err: newDetail(ErrSyntax, "syntax: x")}, "3: syntax: x"},
+		{"field only", &Error{Field: "inputs", Err: newDetail(ErrRange, "bad")}, "inputs: bad"},
+		{"sentinel only", &Error{Err: ErrEmpty}, "spec: empty document"},
 	}
 	for _, tt := range tests {
-		if got := tt.e.Error(); got != tt.want {
-			t.Errorf("got %q, want %q", got, tt.want)
-		}
+		t.Run(tt.name, func(t *testing.T) {
+			assert.Equal(t, tt.want, tt.e.Error())
+		})
 	}
 	l := ErrorList{tests[0].e, tests[1].e}
-	if got, want := l.Error(), tests[0].want+"\n"+tests[1].want; got != want {
-		t.Errorf("list: got %q, want %q", got, want)
-	}
+	assert.Equal(t, tests[0].want+"\n"+tests[1].want, l.Error(), "list")
 }

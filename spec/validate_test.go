@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"reflect"
 	"strings"
 	"testing"
 
@@ -115,15 +114,12 @@ func TestValidate(t *testing.T) {
 			case ErrorList:
 				got = e
 			default:
-				t.Fatalf("error of type %T: %v", err, err)
+				require.FailNowf(t, "unexpected error type", "error of type %T: %v", err, err)
 			}
-			if len(got) != len(tt.fields) {
-				t.Fatalf("got %d problems, want %d: %v", len(got), len(tt.fields), err)
-			}
+			require.Len(t, got, len(tt.fields), "problems: %v", err)
 			for i, e := range got {
-				if e.Field != tt.fields[i] || !errors.Is(e, tt.kinds[i]) || e.Line != 0 || e.Column != 0 {
-					t.Errorf("problem %d: got %q %v at %d:%d, want %q %v at 0:0", i, e.Field, e, e.Line, e.Column, tt.fields[i], tt.kinds[i])
-				}
+				assert.Equal(t, []any{tt.fields[i], 0, 0}, []any{e.Field, e.Line, e.Column}, "problem %d: field, line, column of %v", i, e)
+				assert.ErrorIs(t, e, tt.kinds[i], "problem %d", i)
 			}
 		})
 	}
@@ -132,24 +128,27 @@ func TestValidate(t *testing.T) {
 func TestParamCheck(t *testing.T) {
 	// Sizes 3 → 4 → 2: (3+1)·4 + (4+1)·2 = 26 params.
 	n := valid()
-	if got := n.ParamCount(); got != 26 {
-		t.Fatalf("ParamCount = %d, want 26", got)
-	}
+	require.Equal(t, 26, n.ParamCount(), "ParamCount")
 	tests := []struct {
+		name  string
 		limit int
 		ok    bool
 		field string
 	}{
-		{26, true, ""},
-		{25, false, "output.classes"},
-		{16, false, "output.classes"},
-		{15, false, "hidden[0].units"},
+		{"exact", 26, true, ""},
+		{"one short", 25, false, "output.classes"},
+		{"hidden layer exact", 16, false, "output.classes"},
+		{"hidden layer one short", 15, false, "hidden[0].units"},
 	}
 	for _, tt := range tests {
-		field, c, ok := paramCheck(n, tt.limit)
-		if ok != tt.ok || field != tt.field || (ok && c != 26) {
-			t.Errorf("limit %d: got %q, %d, %v; want %q, %v", tt.limit, field, c, ok, tt.field, tt.ok)
-		}
+		t.Run(tt.name, func(t *testing.T) {
+			field, c, ok := paramCheck(n, tt.limit)
+			assert.Equal(t, tt.ok, ok, "ok at limit %d", tt.limit)
+			assert.Equal(t, tt.field, field, "field at limit %d", tt.limit)
+			if ok {
+				assert.Equal(t, 26, c, "count at limit %d", tt.limit)
+			}
+		})
 	}
 }
 
@@ -174,12 +173,14 @@ func TestLimits(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			_, err := ParseLimits(strings.NewReader(src), tt.lim)
-			if !errors.Is(err, tt.kind) || (err == nil) != (tt.kind == nil) {
-				t.Fatalf("got %v, want %v", err, tt.kind)
+			if tt.kind == nil {
+				require.NoError(t, err)
+				return
 			}
+			require.ErrorIs(t, err, tt.kind)
 			var e *Error
-			if errors.As(err, &e) && e.Field != tt.field {
-				t.Errorf("field %q, want %q", e.Field, tt.field)
+			if errors.As(err, &e) {
+				assert.Equal(t, tt.field, e.Field, "field")
 			}
 		})
 	}
@@ -274,16 +275,10 @@ func (r *countReader) Read(p []byte) (int, error) {
 func TestTooLargeFailsFast(t *testing.T) {
 	r := &countReader{n: 10 << 20}
 	_, err := Parse(r)
-	if !errors.Is(err, ErrTooLarge) {
-		t.Fatalf("got %v, want ErrTooLarge", err)
-	}
+	require.ErrorIs(t, err, ErrTooLarge)
 	// Parse must stop after MaxBytes+1 bytes, not read all 10 MB.
-	if r.read != DefaultMaxBytes+1 {
-		t.Errorf("read %d bytes, want %d", r.read, DefaultMaxBytes+1)
-	}
-	if !strings.Contains(err.Error(), "larger than the limit of 1048576 bytes") {
-		t.Errorf("message %q", err)
-	}
+	assert.Equal(t, int64(DefaultMaxBytes+1), r.read, "bytes read")
+	assert.ErrorContains(t, err, "larger than the limit of 1048576 bytes", "message")
 }
 
 type errReader struct{}
@@ -292,9 +287,7 @@ func (errReader) Read([]byte) (int, error) { return 0, errors.New("boom") }
 
 func TestReadError(t *testing.T) {
 	_, err := Parse(errReader{})
-	if err == nil || !strings.Contains(err.Error(), "boom") {
-		t.Errorf("got %v, want the read error", err)
-	}
+	assert.ErrorContains(t, err, "boom", "want the read error")
 }
 
 func TestClone(t *testing.T) {
@@ -304,23 +297,19 @@ func TestClone(t *testing.T) {
 	n.MissingTokens = []string{"", "NA"}
 	n.Train.ClassWeights.By = map[string]float64{"a": 2}
 	c := n.Clone()
-	if !reflect.DeepEqual(n, c) {
-		t.Fatalf("clone differs: %#v", c)
-	}
+	require.Equal(t, n, c, "clone differs")
 	c.Features[0], c.Hidden[0].Units, c.Output.Classes[0] = "q", 99, "q"
 	c.Types[1].Levels[0], c.Types[2].Fill, c.MissingTokens[1], c.Train.ClassWeights.By["a"] = "r", 5, "?", 3
-	if n.Features[0] != "x" || n.Hidden[0].Units != 4 || n.Output.Classes[0] != "a" ||
-		n.Types[1].Levels[0] != "p" || n.Types[2].Fill != 1 || n.MissingTokens[1] != "NA" || n.Train.ClassWeights.By["a"] != 2 {
-		t.Errorf("clone shares memory with the original: %#v", n)
-	}
+	assert.Equal(t,
+		[]any{"x", 4, "a", "p", 1.0, "NA", 2.0},
+		[]any{n.Features[0], n.Hidden[0].Units, n.Output.Classes[0], n.Types[1].Levels[0], n.Types[2].Fill, n.MissingTokens[1], n.Train.ClassWeights.By["a"]},
+		"clone shares memory with the original: %#v", n)
 	// nil stays nil, so a clone of a parsed spec round-trips like the spec.
 	m := valid().Clone()
 	assert.Nil(t, m.Types)
 	assert.Nil(t, m.MissingTokens)
 	assert.Nil(t, m.Train.ClassWeights.By)
-	if (*Network)(nil).Clone() != nil {
-		t.Error("Clone of nil is not nil")
-	}
+	assert.Nil(t, (*Network)(nil).Clone(), "Clone of nil")
 }
 
 // A spec with thousands of duplicate class names reports them all in the
@@ -337,11 +326,9 @@ func TestErrorListCapped(t *testing.T) {
 	b.WriteString("]\n")
 	_, err := Parse(strings.NewReader(b.String()))
 	var list ErrorList
-	if !errors.As(err, &list) {
-		t.Fatalf("want an ErrorList, got %v", err)
-	}
+	require.ErrorAs(t, err, &list)
 	lines := strings.Split(err.Error(), "\n")
-	if len(lines) != MaxListed+1 || lines[MaxListed] != fmt.Sprintf("and %d more problems", len(list)-MaxListed) {
-		t.Errorf("%d problems gave %d lines, last %q", len(list), len(lines), lines[len(lines)-1])
-	}
+	// Not assert.Len: on failure it would print all the lines.
+	assert.Equal(t, MaxListed+1, len(lines), "%d problems gave %d lines, last %q", len(list), len(lines), lines[len(lines)-1])
+	assert.Equal(t, fmt.Sprintf("and %d more problems", len(list)-MaxListed), lines[len(lines)-1], "last line")
 }

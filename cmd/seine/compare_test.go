@@ -28,30 +28,22 @@ const (
 func checkPNG(t *testing.T, path string, w, h int) {
 	t.Helper()
 	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	defer f.Close()
 	cfg, format, err := image.DecodeConfig(f)
-	if err != nil {
-		t.Fatalf("%s: %v", path, err)
-	}
-	if format != "png" || cfg.Width != w || cfg.Height != h {
-		t.Errorf("%s: %s %d×%d, want png %d×%d", path, format, cfg.Width, cfg.Height, w, h)
-	}
+	require.NoError(t, err, path)
+	assert.Equal(t, []any{"png", w, h}, []any{format, cfg.Width, cfg.Height}, "%s: format, width, height", path)
 }
 
 // checkSVG checks that path is an SVG document of the narrow size.
 func checkSVG(t *testing.T, path string) {
 	t.Helper()
 	b, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	s := string(b)
-	if !strings.Contains(s, "<svg") || !strings.Contains(s, svgNarrow) || !strings.HasSuffix(strings.TrimSpace(s), "</svg>") {
-		t.Errorf("%s: not a complete SVG of %s: %.200s", path, svgNarrow, s)
-	}
+	assert.True(t, strings.Contains(s, "<svg"), "%s: no <svg> element: %.200s", path, s)
+	assert.True(t, strings.Contains(s, svgNarrow), "%s: not an SVG of %s: %.200s", path, svgNarrow, s)
+	assert.True(t, strings.HasSuffix(strings.TrimSpace(s), "</svg>"), "%s: not a complete SVG, no </svg> at the end: %.200s", path, s)
 }
 
 func TestCompareCommand(t *testing.T) {
@@ -60,45 +52,29 @@ func TestCompareCommand(t *testing.T) {
 	trace := filepath.Join(dir, "trace.csv")
 	r := runIn("compare", "-spec", triageSpec, "-data", triageData, "-optimizers", "lbfgs, adam",
 		"-iterations", "4", "-seeds", "2", "-holdout", "0.2", "-json", "-plot", plot, "-trace", trace)
-	if r.code != 0 {
-		t.Fatalf("status %d: %s", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, r.stderr)
 	var rows []map[string]any
-	if err := json.Unmarshal([]byte(r.stdout), &rows); err != nil {
-		t.Fatalf("JSON: %v\n%s", err, r.stdout)
-	}
-	if len(rows) != 2 || rows[0]["optimizer"] != "lbfgs" || rows[1]["optimizer"] != "adam" {
-		t.Fatalf("rows = %v", rows)
-	}
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &rows), "JSON:\n%s", r.stdout)
+	require.Len(t, rows, 2, "rows = %v", rows)
+	require.Equal(t, "lbfgs", rows[0]["optimizer"], "rows = %v", rows)
+	require.Equal(t, "adam", rows[1]["optimizer"], "rows = %v", rows)
 	for _, k := range []string{"optimizer", "final_cost", "evaluations", "iterations", "seconds", "holdout_accuracy", "status", "evaluations_to_target", "reached"} {
-		if _, ok := rows[0][k]; !ok {
-			t.Errorf("JSON lacks %q", k)
-		}
+		assert.Contains(t, rows[0], k, "JSON lacks %q", k)
 	}
 	// 4 epochs of Adam over all training rows count 4 evaluations
 	// (optim's accounting, b/m per batch).
-	if ev := rows[1]["evaluations"].(float64); ev < 4-1e-9 || ev > 4+1e-9 {
-		t.Errorf("adam evaluations %g, want 4", ev)
-	}
+	assert.InDelta(t, 4, rows[1]["evaluations"], 1e-9, "adam evaluations")
 	checkPNG(t, plot, pngWide, pngHeight)
 
 	f, err := os.Open(trace)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	recs, err := csv.NewReader(f).ReadAll()
 	f.Close()
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	want := "method,seed,iteration,evaluations,seconds,cost,grad_norm,holdout_accuracy"
-	if got := strings.Join(recs[0], ","); got != want {
-		t.Errorf("trace header %q, want %q", got, want)
-	}
+	assert.Equal(t, want, strings.Join(recs[0], ","), "trace header")
 	// 2 methods × 2 seeds × 4 iterations (neither converges in 4).
-	if len(recs) != 1+16 {
-		t.Errorf("trace has %d records, want 17", len(recs))
-	}
+	assert.Equal(t, 1+16, len(recs), "trace records")
 }
 
 func TestCompareTableAndProfiles(t *testing.T) {
@@ -107,17 +83,11 @@ func TestCompareTableAndProfiles(t *testing.T) {
 	problems := filepath.Join(dir, "problems.txt")
 	abs := func(p string) string { a, _ := filepath.Abs(p); return a }
 	text := "# two problems\n" + abs(triageSpec) + " " + abs(triageData) + "\n\n" + abs(triageSpec) + "  " + abs(triageData) + "\n"
-	if err := os.WriteFile(problems, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, os.WriteFile(problems, []byte(text), 0o644))
 	r := runIn("compare", "-problems", problems, "-optimizers", "gd,lbfgs", "-iterations", "3", "-plot", plot)
-	if r.code != 0 {
-		t.Fatalf("status %d: %s", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, r.stderr)
 	for _, w := range []string{"evals→target", "a mini-batch of b rows", "ρ(1)", "Dolan & Moré 2002", "lbfgs"} {
-		if !strings.Contains(r.stdout, w) {
-			t.Errorf("table lacks %q:\n%s", w, r.stdout)
-		}
+		assert.Contains(t, r.stdout, w, "table lacks %q", w)
 	}
 	checkSVG(t, plot)
 	checkSVG(t, filepath.Join(dir, "profile-time.svg"))
@@ -147,9 +117,7 @@ func TestCompareUsage(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := runIn(append([]string{"compare"}, tt.args...)...)
-			if r.code != tt.code {
-				t.Fatalf("status %d, want %d; stderr %q", r.code, tt.code, r.stderr)
-			}
+			require.Equal(t, tt.code, r.code, "status; stderr %q", r.stderr)
 			oneLineError(t, r.stderr, tt.want)
 		})
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"encoding/json"
 	"path/filepath"
-	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -14,49 +13,43 @@ func TestCurveCommand(t *testing.T) {
 	dir := t.TempDir()
 	plot := filepath.Join(dir, "curve.svg")
 	r := runIn("curve", "-spec", triageSpec, "-data", triageData, "-steps", "2", "-iterations", "5", "-json", "-plot", plot)
-	if r.code != 0 {
-		t.Fatalf("status %d: %s", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, r.stderr)
 	var c map[string]any
-	if err := json.Unmarshal([]byte(r.stdout), &c); err != nil {
-		t.Fatalf("JSON: %v\n%s", err, r.stdout)
-	}
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &c), "JSON:\n%s", r.stdout)
 	for _, k := range []string{"holdout_rows", "baseline", "shape", "hint", "points"} {
-		if _, ok := c[k]; !ok {
-			t.Errorf("JSON lacks %q", k)
-		}
+		assert.Contains(t, c, k, "JSON lacks %q", k)
 	}
 	pts := c["points"].([]any)
 	// 3000 rows, default holdout 0.25: 2250 training rows, sizes 1125 and
 	// 2250.
-	if len(pts) != 2 || pts[1].(map[string]any)["rows"].(float64) != 2250 {
-		t.Errorf("points = %v", pts)
+	if assert.Len(t, pts, 2, "points") {
+		assert.Equal(t, 2250.0, pts[1].(map[string]any)["rows"], "rows of the second point; points = %v", pts)
 	}
 	checkSVG(t, plot)
 
 	r = runIn("curve", "-spec", triageSpec, "-data", triageData, "-steps", "1", "-iterations", "2")
-	if r.code != 0 || !strings.Contains(r.stdout, "Hint, not a verdict:") || !strings.Contains(r.stdout, "holdout cost") {
-		t.Errorf("text report: status %d\n%s%s", r.code, r.stdout, r.stderr)
-	}
+	assert.Equal(t, 0, r.code, "text report: status; stderr %s", r.stderr)
+	assert.Contains(t, r.stdout, "Hint, not a verdict:", "text report")
+	assert.Contains(t, r.stdout, "holdout cost", "text report")
 }
 
 func TestCurveUsage(t *testing.T) {
 	tests := []struct {
+		name string
 		args []string
 		want string
 	}{
-		{[]string{"-data", "d"}, "-spec is required"},
-		{[]string{"-spec", "s", "-data", "d", "-steps", "0"}, "-steps 0"},
-		{[]string{"-spec", "s", "-data", "d", "-holdout", "1"}, "-holdout 1"},
-		{[]string{"-spec", "s", "-data", "d", "-plot", "c.gif"}, ".png or .svg"},
+		{"no spec", []string{"-data", "d"}, "-spec is required"},
+		{"steps 0", []string{"-spec", "s", "-data", "d", "-steps", "0"}, "-steps 0"},
+		{"holdout 1", []string{"-spec", "s", "-data", "d", "-holdout", "1"}, "-holdout 1"},
+		{"plot format", []string{"-spec", "s", "-data", "d", "-plot", "c.gif"}, ".png or .svg"},
 	}
 	for _, tt := range tests {
-		r := runIn(append([]string{"curve"}, tt.args...)...)
-		if r.code != 2 {
-			t.Errorf("%v: status %d, want 2", tt.args, r.code)
-			continue
-		}
-		oneLineError(t, r.stderr, tt.want)
+		t.Run(tt.name, func(t *testing.T) {
+			r := runIn(append([]string{"curve"}, tt.args...)...)
+			require.Equal(t, 2, r.code, "%v: status", tt.args)
+			oneLineError(t, r.stderr, tt.want)
+		})
 	}
 }
 

@@ -37,7 +37,7 @@ func seineEnv(t *testing.T, environ []string, args ...string) result {
 	if ee, ok := err.(*exec.ExitError); ok {
 		code = ee.ExitCode()
 	} else if err != nil {
-		t.Fatalf("running seine: %v", err)
+		require.NoError(t, err, "running seine")
 	}
 	return result{code: code, stdout: out.String(), stderr: errb.String()}
 }

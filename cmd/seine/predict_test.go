@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
-	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -42,31 +41,21 @@ func TestPredictDigits(t *testing.T) {
 
 func TestPredict(t *testing.T) {
 	r := seine(t, "predict", "-model", baseModel, "-data", triageData, "-probabilities", "-digits", "0")
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "stderr %q", r.stderr)
 	recs, err := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	want := []string{"class", "p_human", "p_crawler", "p_scraper", "p_stuffer", "p_monitor"}
-	if strings.Join(recs[0], ",") != strings.Join(want, ",") {
-		t.Errorf("header %v, want %v", recs[0], want)
-	}
-	if len(recs)-1 != triageRows {
-		t.Fatalf("%d rows, want %d", len(recs)-1, triageRows)
-	}
+	assert.Equal(t, strings.Join(want, ","), strings.Join(recs[0], ","), "header")
+	require.Equal(t, triageRows, len(recs)-1, "rows")
 	m, err := nn.Load(baseModel)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	for i, rec := range recs[1:] {
 		sum, best := 0.0, 1
 		for j := 1; j < len(rec); j++ {
 			p, err := strconv.ParseFloat(rec[j], 64)
-			if err != nil || p < 0 || p > 1 {
-				t.Fatalf("row %d: probability %q", i+1, rec[j])
-			}
+			require.NoError(t, err, "row %d: probability %q", i+1, rec[j])
+			require.GreaterOrEqual(t, p, 0.0, "row %d: probability %q", i+1, rec[j])
+			require.LessOrEqual(t, p, 1.0, "row %d: probability %q", i+1, rec[j])
 			sum += p
 			if v, _ := strconv.ParseFloat(rec[best], 64); p > v {
 				best = j
@@ -75,16 +64,12 @@ func TestPredict(t *testing.T) {
 		// Softmax outputs are normalised in float64 and -digits 0 writes
 		// each probability exactly: the sum of 5 terms is 1 up to a few
 		// units of rounding, 5·2⁻⁵² ≈ 1.1e-15, so 1e-14 leaves a margin.
-		if math.Abs(sum-1) > 1e-14 {
-			t.Errorf("row %d: probabilities sum to %.17g", i+1, sum)
-		}
-		if rec[0] != want[best][2:] {
-			t.Errorf("row %d: class %q but the largest probability is %s", i+1, rec[0], want[best])
-		}
-		if i == 0 && rec[0] != m.Classes()[0] {
+		assert.InDelta(t, 1, sum, 1e-14, "row %d: probabilities sum to %.17g", i+1, sum)
+		assert.Equal(t, want[best][2:], rec[0], "row %d: class, against the largest probability %s", i+1, want[best])
+		if i == 0 {
 			// The first row of sessions.csv is a human session that every
 			// model trained here gets right (probability 0.99 at 100 iterations).
-			t.Errorf("row 1: %q, want human", rec[0])
+			assert.Equal(t, m.Classes()[0], rec[0], "row 1, want human")
 		}
 	}
 }
@@ -94,9 +79,7 @@ func TestPredict(t *testing.T) {
 func TestPredictNoLabel(t *testing.T) {
 	dir := t.TempDir()
 	b, err := os.ReadFile("testdata/unknown_label.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	var nolabel bytes.Buffer
 	for _, line := range strings.Split(strings.TrimSpace(string(b)), "\n") {
 		nolabel.WriteString(line[:strings.LastIndexByte(line, ',')] + "\n")
@@ -105,79 +88,71 @@ func TestPredictNoLabel(t *testing.T) {
 	os.WriteFile(in, nolabel.Bytes(), 0o644)
 	out := filepath.Join(dir, "out.csv")
 	r := seine(t, "predict", "-model", baseModel, "-data", in, "-out", out)
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "stderr %q", r.stderr)
 	got, _ := os.ReadFile(out)
-	if lines := strings.Split(strings.TrimSpace(string(got)), "\n"); len(lines) != 4 || lines[0] != "class" {
-		t.Errorf("output %q: want a header and 3 rows", got)
-	}
+	lines := strings.Split(strings.TrimSpace(string(got)), "\n")
+	assert.Len(t, lines, 4, "output %q: want a header and 3 rows", got)
+	assert.Equal(t, "class", lines[0], "header of %q", got)
 	// The labelled file gives the same classes: its label column is not
 	// among the model's features, whatever its values.
 	r2 := seine(t, "predict", "-model", baseModel, "-data", "testdata/unknown_label.csv")
-	if r2.code != 0 || r2.stdout != string(got) {
-		t.Errorf("labelled input: status %d, %q; want %q", r2.code, r2.stdout, got)
-	}
+	assert.Equal(t, 0, r2.code, "labelled input: status; stderr %q", r2.stderr)
+	assert.Equal(t, string(got), r2.stdout, "labelled input")
 	// Bad input: one line, and the old output is kept.
 	r = seine(t, "predict", "-model", baseModel, "-data", "testdata/nan.csv", "-out", out)
-	if r.code != 1 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 1, r.code, "stderr %q", r.stderr)
 	oneLineError(t, r.stderr, "nan.csv: line 4 (row 3)", "error_share")
-	if after, _ := os.ReadFile(out); !bytes.Equal(after, got) {
-		t.Errorf("-out changed on failure")
-	}
+	after, _ := os.ReadFile(out)
+	assert.Equal(t, string(got), string(after), "-out changed on failure")
 }
 
 func TestGradientCheck(t *testing.T) {
-	for _, args := range [][]string{
-		{"gradient-check", "-spec", triageSpec, "-json"},
-		{"gradient-check", "-spec", triageSpec, "-data", triageData, "-rows", "30", "-json"},
+	for _, tt := range []struct {
+		name string
+		args []string
+	}{
+		{"without data", []string{"gradient-check", "-spec", triageSpec, "-json"}},
+		{"with data", []string{"gradient-check", "-spec", triageSpec, "-data", triageData, "-rows", "30", "-json"}},
 	} {
-		r := seine(t, args...)
-		if r.code != 0 {
-			t.Fatalf("%v: status %d; stderr %q", args, r.code, r.stderr)
-		}
-		var g gradReport
-		if err := json.Unmarshal([]byte(r.stdout), &g); err != nil {
-			t.Fatal(err)
-		}
-		// optim.CheckGradient's doc: a correct gradient gives about 1e-7 or
-		// less with central differences; we measured about 1e-10 here.
-		// Without data, agent_family's levels are not known and count as
-		// two (plus its missing unit): 19 input units, (19+1)·24 + 25·5 =
-		// 605 params. With data, the encoder learns the levels of the 30
-		// rows: all four families, 21 units, 22·24 + 125 = 653 params.
-		want := 605
-		if len(args) > 4 {
-			want = 653
-		}
-		if !(g.MaxRelErr < 1e-6) || !g.Passed || g.Params != want {
-			t.Errorf("%v: %+v, want %d params", args, g, want)
-		}
-		if len(args) > 4 {
-			continue // paramName's check below needs the placeholder net
-		}
-		if layer, name := paramName(mustNet(t), g.Param); layer != g.Layer || name != g.Name {
-			t.Errorf("param %d named %q in layer %d, want %q in %d", g.Param, g.Name, g.Layer, name, layer)
-		}
+		t.Run(tt.name, func(t *testing.T) {
+			args := tt.args
+			r := seine(t, args...)
+			require.Equal(t, 0, r.code, "%v: stderr %q", args, r.stderr)
+			var g gradReport
+			require.NoError(t, json.Unmarshal([]byte(r.stdout), &g))
+			// optim.CheckGradient's doc: a correct gradient gives about 1e-7 or
+			// less with central differences; we measured about 1e-10 here.
+			// Without data, agent_family's levels are not known and count as
+			// two (plus its missing unit): 19 input units, (19+1)·24 + 25·5 =
+			// 605 params. With data, the encoder learns the levels of the 30
+			// rows: all four families, 21 units, 22·24 + 125 = 653 params.
+			want := 605
+			if len(args) > 4 {
+				want = 653
+			}
+			assert.Less(t, g.MaxRelErr, 1e-6, "%v: %+v", args, g)
+			assert.True(t, g.Passed, "%v: %+v", args, g)
+			assert.Equal(t, want, g.Params, "%v: params", args)
+			if len(args) > 4 {
+				return // paramName's check below needs the placeholder net
+			}
+			layer, name := paramName(mustNet(t), g.Param)
+			assert.Equal(t, layer, g.Layer, "layer of param %d", g.Param)
+			assert.Equal(t, name, g.Name, "name of param %d", g.Param)
+		})
 	}
 	r := seine(t, "gradient-check", "-spec", triageSpec)
-	if r.code != 0 || !strings.Contains(r.stdout, "largest relative error") || !strings.Contains(r.stdout, "passed") {
-		t.Errorf("text: status %d, %q", r.code, r.stdout)
-	}
+	assert.Equal(t, 0, r.code, "text: status; stderr %q", r.stderr)
+	assert.Contains(t, r.stdout, "largest relative error", "text")
+	assert.Contains(t, r.stdout, "passed", "text")
 }
 
 func mustNet(t *testing.T) *nn.Net {
 	t.Helper()
 	s, err := loadSpec(context.Background(), triageSpec)
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	n, err := nn.Compile(encode.Placeholder(s))
-	if err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, err)
 	return n
 }
 
@@ -200,9 +175,11 @@ func TestParamName(t *testing.T) {
 		{480 + 3*24 + 7, 2, "layer 2 weight [3,7]"},
 		{604, 2, "layer 2 bias [4]"},
 	} {
-		if l, name := paramName(n, tt.i); l != tt.layer || name != tt.name {
-			t.Errorf("param %d: %d %q, want %d %q", tt.i, l, name, tt.layer, tt.name)
-		}
+		t.Run(tt.name, func(t *testing.T) {
+			l, name := paramName(n, tt.i)
+			assert.Equal(t, tt.layer, l, "layer of param %d", tt.i)
+			assert.Equal(t, tt.name, name, "name of param %d", tt.i)
+		})
 	}
 }
 
@@ -213,39 +190,28 @@ func TestGradientReportFails(t *testing.T) {
 	r := gradReport{MaxRelErr: 3e-3, Name: "layer 2 bias [1]", Tolerance: gradTolerance}
 	var out bytes.Buffer
 	err := r.write(&out, false, s)
-	if err == nil || !strings.Contains(err.Error(), "relative error 0.003 at layer 2 bias [1] exceeds 1e-06") {
-		t.Errorf("error %v", err)
-	}
-	if !strings.Contains(out.String(), "FAILED") {
-		t.Errorf("report %q", out.String())
-	}
+	assert.ErrorContains(t, err, "relative error 0.003 at layer 2 bias [1] exceeds 1e-06")
+	assert.Contains(t, out.String(), "FAILED", "report")
 }
 
 func TestInspect(t *testing.T) {
 	r := seine(t, "inspect", "-spec", triageSpec)
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "stderr %q", r.stderr)
 	// agent_family's levels are learned from data, so inspect counts two
 	// stand-in levels and the missing unit: 19 input units, 19·24+24+24·5+5
 	// = 605 params; FLOPs from nn's documented formula: predict
 	// Σ(2·n_l·n_{l+1} + 2·n_{l+1}) = 912+48 + 240+10 = 1,210.
 	for _, w := range []string{"all", "605", "1 ", "19 → 24", "tanh", "24 → 5", "softmax", "1,210 to predict", "training on 10000 rows", "agent_family  category, levels learned"} {
-		if !strings.Contains(r.stdout, w) {
-			t.Errorf("inspect lacks %q:\n%s", w, r.stdout)
-		}
+		assert.Contains(t, r.stdout, w, "inspect lacks %q", w)
 	}
 	s, _ := loadSpec(context.Background(), triageSpec)
-	if n := encode.Placeholder(s).ParamCount(); !strings.Contains(r.stdout, "params          "+strconv.Itoa(n)+" float64") {
-		t.Errorf("param count: want %d:\n%s", n, r.stdout)
-	}
+	n := encode.Placeholder(s).ParamCount()
+	assert.Contains(t, r.stdout, "params          "+strconv.Itoa(n)+" float64", "param count: want %d", n)
 	r = seine(t, "inspect", "-model", baseModel)
-	if r.code != 0 || !strings.Contains(r.stdout, "training on 2250 rows") || !strings.Contains(r.stdout, "holdout rows    750") {
-		t.Errorf("model: status %d:\n%s%s", r.code, r.stdout, r.stderr)
-	}
-	if r := runIn("inspect", "-spec", triageSpec, "-model", baseModel); r.code != 2 {
-		t.Errorf("both -spec and -model: status %d", r.code)
-	}
+	assert.Equal(t, 0, r.code, "model: status; stderr %s", r.stderr)
+	assert.Contains(t, r.stdout, "training on 2250 rows", "model")
+	assert.Contains(t, r.stdout, "holdout rows    750", "model")
+	assert.Equal(t, 2, runIn("inspect", "-spec", triageSpec, "-model", baseModel).code, "both -spec and -model: status")
 }
 
 func TestBytesAndCounts(t *testing.T) {
@@ -253,17 +219,17 @@ func TestBytesAndCounts(t *testing.T) {
 		b    int64
 		want string
 	}{{0, "0 B"}, {1023, "1023 B"}, {1024, "1.0 KiB"}, {4264, "4.2 KiB"}, {3 << 20, "3.0 MiB"}} {
-		if got := bytesText(tt.b); got != tt.want {
-			t.Errorf("bytesText(%d) = %q, want %q", tt.b, got, tt.want)
-		}
+		t.Run("bytesText "+tt.want, func(t *testing.T) {
+			assert.Equal(t, tt.want, bytesText(tt.b), "bytesText(%d)", tt.b)
+		})
 	}
 	for _, tt := range []struct {
 		v    float64
 		want string
 	}{{7, "7"}, {999, "999"}, {1066, "1,066"}, {1234567, "1,234,567"}} {
-		if got := countText(tt.v); got != tt.want {
-			t.Errorf("countText(%g) = %q, want %q", tt.v, got, tt.want)
-		}
+		t.Run("countText "+tt.want, func(t *testing.T) {
+			assert.Equal(t, tt.want, countText(tt.v), "countText(%g)", tt.v)
+		})
 	}
 }
 
@@ -275,33 +241,22 @@ func TestCheckpointResume(t *testing.T) {
 	out := filepath.Join(dir, "m.seine.json")
 	r := seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", out, "-iterations", "20",
 		"-checkpoint", ck, "-every", "10", "-quiet")
-	if r.code != 0 {
-		t.Fatalf("status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "stderr %q", r.stderr)
 	c, err := nn.Load(ck)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if c.Summary().Iterations != 20 || c.Summary().Status != optim.Running {
-		t.Errorf("checkpoint summary %+v", c.Summary())
-	}
+	require.NoError(t, err)
+	assert.Equal(t, 20, c.Summary().Iterations, "checkpoint summary %+v", c.Summary())
+	assert.Equal(t, optim.Running, c.Summary().Status, "checkpoint summary %+v", c.Summary())
 	r = seine(t, "train", "-spec", triageSpec, "-data", triageData, "-out", out, "-iterations", "1", "-resume", ck)
-	if r.code != 0 {
-		t.Fatalf("resume: status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, "resume: stderr %q", r.stderr)
 	// L-BFGS never raises the cost, so after one more iteration the cost is
 	// at most the checkpoint's (which is well below the start, ~1.6).
 	m, _ := nn.Load(out)
-	if !(m.Summary().Cost <= c.Summary().Cost) {
-		t.Errorf("resumed cost %g above the checkpoint's %g", m.Summary().Cost, c.Summary().Cost)
-	}
+	assert.LessOrEqual(t, m.Summary().Cost, c.Summary().Cost, "resumed cost above the checkpoint's")
 	before, _ := os.ReadFile(out)
 	r = seine(t, "train", "-spec", "testdata/triage_small.yaml", "-data", triageData, "-out", out, "-resume", ck)
-	if r.code != 1 {
-		t.Fatalf("mismatched resume: status %d; stderr %q", r.code, r.stderr)
-	}
+	require.Equal(t, 1, r.code, "mismatched resume: stderr %q", r.stderr)
 	oneLineError(t, r.stderr, "-resume "+ck, "21 → 24 tanh → 5 softmax", "21 → 8 tanh → 5 softmax")
-	if after, _ := os.ReadFile(out); !bytes.Equal(before, after) {
-		t.Errorf("-out changed on failure")
-	}
+	// Not assert.Equal: a diff of two model files is no help.
+	after, _ := os.ReadFile(out)
+	assert.True(t, bytes.Equal(before, after), "-out changed on failure")
 }

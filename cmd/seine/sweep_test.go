@@ -20,35 +20,23 @@ func TestSweepCommand(t *testing.T) {
 	plot := filepath.Join(dir, "sweep.png")
 	r := runIn("sweep", "-spec", triageSpec, "-data", triageData, "-l2", "0,1,10", "-units", "4,8",
 		"-folds", "2", "-iterations", "5", "-json", "-plot", plot)
-	if r.code != 0 {
-		t.Fatalf("status %d: %s", r.code, r.stderr)
-	}
+	require.Equal(t, 0, r.code, r.stderr)
 	var sweeps []map[string]any
-	if err := json.Unmarshal([]byte(r.stdout), &sweeps); err != nil {
-		t.Fatalf("JSON: %v\n%s", err, r.stdout)
-	}
-	if len(sweeps) != 2 || sweeps[0]["param"] != "l2" || sweeps[1]["param"] != "units" {
-		t.Fatalf("sweeps = %v", sweeps)
-	}
+	require.NoError(t, json.Unmarshal([]byte(r.stdout), &sweeps), "JSON:\n%s", r.stdout)
+	require.Len(t, sweeps, 2, "sweeps = %v", sweeps)
+	require.Equal(t, "l2", sweeps[0]["param"], "sweeps = %v", sweeps)
+	require.Equal(t, "units", sweeps[1]["param"], "sweeps = %v", sweeps)
 	pts := sweeps[0]["points"].([]any)
-	if len(pts) != 3 {
-		t.Fatalf("%d points, want 3", len(pts))
-	}
+	require.Len(t, pts, 3, "points")
 	p := pts[0].(map[string]any)
 	for _, k := range []string{"l2", "units", "train_cost", "valid_cost", "train_accuracy", "valid_accuracy"} {
-		if _, ok := p[k]; !ok {
-			t.Errorf("point lacks %q", k)
-		}
+		assert.Contains(t, p, k, "point lacks %q", k)
 	}
 	vc := p["valid_cost"].(map[string]any)
 	for _, k := range []string{"mean", "sd", "min", "max"} {
-		if _, ok := vc[k]; !ok {
-			t.Errorf("valid_cost lacks %q", k)
-		}
+		assert.Contains(t, vc, k, "valid_cost lacks %q", k)
 	}
-	if sweeps[0]["folds"].(float64) != 2 {
-		t.Errorf("folds = %v, want 2", sweeps[0]["folds"])
-	}
+	assert.Equal(t, 2.0, sweeps[0]["folds"], "folds")
 	checkPNG(t, plot, pngNarrow, pngHeight)
 	checkPNG(t, filepath.Join(dir, "sweep-units.png"), pngNarrow, pngHeight)
 }
@@ -69,9 +57,7 @@ func TestSweepUsage(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			r := runIn(append([]string{"sweep"}, tt.args...)...)
-			if r.code != 2 {
-				t.Fatalf("status %d, want 2; stderr %q", r.code, r.stderr)
-			}
+			require.Equal(t, 2, r.code, "status; stderr %q", r.stderr)
 			oneLineError(t, r.stderr, tt.want)
 		})
 	}

@@ -5,6 +5,9 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // The fit recovers the generating parameters: with 200 points and noise
@@ -12,22 +15,16 @@ import (
 // well inside 0.1 of (2, 1.3, 0.5) (the synthetic data's own truth).
 func TestRun(t *testing.T) {
 	var buf bytes.Buffer
-	if err := run(&buf); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, run(&buf))
 	lines := strings.Split(strings.TrimSpace(buf.String()), "\n")
-	if len(lines) != 3 {
-		t.Fatalf("output:\n%s", buf.String())
-	}
+	require.Len(t, lines, 3, "output:\n%s", buf.String())
 	for _, l := range lines[1:] {
 		f := strings.Fields(l)
-		if f[1] != "GradConverged" {
-			t.Errorf("%s: status %s", f[0], f[1])
-		}
+		assert.Equal(t, "GradConverged", f[1], "%s: status", f[0])
 		for i, want := range []float64{2, 1.3, 0.5} {
 			got, err := strconv.ParseFloat(f[5+i], 64)
-			if err != nil || got < want-0.1 || got > want+0.1 {
-				t.Errorf("%s: parameter %d = %s, want %g ± 0.1", f[0], i, f[5+i], want)
+			if assert.NoError(t, err, "%s: parameter %d", f[0], i) {
+				assert.InDelta(t, want, got, 0.1, "%s: parameter %d = %s, want %g ± 0.1", f[0], i, f[5+i], want)
 			}
 		}
 	}

@@ -5,6 +5,9 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
 )
 
 // TestCommitted: the committed signins.csv is what the generator writes
@@ -12,16 +15,11 @@ import (
 // it cannot drift apart.
 func TestCommitted(t *testing.T) {
 	var b bytes.Buffer
-	if err := write(&b, 6000, 20261203); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, write(&b, 6000, 20261203))
 	want, err := os.ReadFile("../signins.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !bytes.Equal(b.Bytes(), want) {
-		t.Fatal("examples/rare/signins.csv differs from `go run ./examples/rare/gen`; regenerate it")
-	}
+	require.NoError(t, err)
+	// Not assert.Equal: a diff of two 6000-line files is no help.
+	assert.True(t, bytes.Equal(b.Bytes(), want), "examples/rare/signins.csv differs from `go run ./examples/rare/gen`; regenerate it")
 }
 
 // TestShares: the file has the rare class at about takeoverShare and the
@@ -29,16 +27,12 @@ func TestCommitted(t *testing.T) {
 // count is √(6000·0.03·0.97) ≈ 13; the bounds are over 3 SD wide.
 func TestShares(t *testing.T) {
 	var b bytes.Buffer
-	if err := write(&b, 6000, 20261203); err != nil {
-		t.Fatal(err)
-	}
+	require.NoError(t, write(&b, 6000, 20261203))
 	lines := strings.Split(strings.TrimSpace(b.String()), "\n")[1:]
 	takeovers, noChannel, noTyping := 0, 0, 0
 	for _, l := range lines {
 		f := strings.Split(l, ",")
-		if len(f) != len(header) {
-			t.Fatalf("line %q has %d fields, want %d", l, len(f), len(header))
-		}
+		require.Len(t, f, len(header), "fields of line %q", l)
 		if f[7] == "takeover" {
 			takeovers++
 		}
@@ -47,18 +41,10 @@ func TestShares(t *testing.T) {
 		}
 		if f[5] == "" {
 			noTyping++
-			if f[6] != "api" && f[6] != "" {
-				t.Errorf("typing_ms missing on a %s sign-in", f[6])
-			}
+			assert.Contains(t, []string{"api", ""}, f[6], "typing_ms missing on a %s sign-in", f[6])
 		}
 	}
-	if takeovers < 140 || takeovers > 220 {
-		t.Errorf("%d takeovers in 6000 rows, want about 180", takeovers)
-	}
-	if noChannel < 180 || noChannel > 300 {
-		t.Errorf("%d rows without a channel, want about 240", noChannel)
-	}
-	if noTyping == 0 {
-		t.Error("no API sign-in without typing_ms")
-	}
+	assert.InDelta(t, 180, takeovers, 40, "takeovers in 6000 rows, want about 180")
+	assert.InDelta(t, 240, noChannel, 60, "rows without a channel, want about 240")
+	assert.NotZero(t, noTyping, "no API sign-in without typing_ms")
 }
