@@ -184,10 +184,6 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	if err := opt.check(); err != nil {
 		return nil, err
 	}
-	maxCols := opt.MaxColumns
-	if maxCols <= 0 {
-		maxCols = defaultMaxColumns
-	}
 	maxLine := opt.MaxLineBytes
 	if maxLine <= 0 {
 		maxLine = defaultMaxLineBytes
@@ -205,33 +201,89 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 	cr.ReuseRecord = true
 	rd := &recordReader{cr: cr, lim: lim}
 
-	// Header.
-	rec, err := rd.next(0)
-	if err == io.EOF {
-		return nil, &Error{Line: 1, Err: describe(ErrEmpty, "the file is empty; expected a header row naming the columns")}
-	}
+	l, err := readLayout(rd, &opt)
 	if err != nil {
 		return nil, err
 	}
-	hLine, _ := cr.FieldPos(0)
+	return readRows(rd, &l, &opt)
+}
+
+// csvLayout is what a file's header and the options say about the fields
+// of every record.
+type csvLayout struct {
+	names    []string // field names from the header, trimmed
+	line     int      // the header's line
+	labelCol int      // field of the label column, or -1 for none
+	role     []int    // what each field is: feature k ≥ 0, roleLabel or roleIgnored
+	nf       int      // number of features
+}
+
+// What a field is, in csvLayout.role, when it is not a feature. A label
+// column that is not read (CSVOptions.NoLabel) is ignored.
+const (
+	roleIgnored = -1
+	roleLabel   = -2
+)
+
+// readLayout reads the header from rd and resolves which field plays which
+// role, as opt asks.
+func readLayout(rd *recordReader, opt *CSVOptions) (csvLayout, error) {
+	names, line, err := readHeader(rd, opt.MaxColumns)
+	if err != nil {
+		return csvLayout{}, err
+	}
+	l := csvLayout{names: names, line: line}
+	index := make(map[string]int, len(names)) // the field of each name
+	for i, n := range names {
+		if j, ok := index[n]; ok {
+			return csvLayout{}, &Error{Line: line, Column: n, Field: i + 1, Err: describe(ErrDuplicateColumn, "name used by fields %d and %d of the header", j+1, i+1)}
+		}
+		index[n] = i
+	}
+	if l.labelCol, err = l.findLabel(index, opt); err != nil {
+		return csvLayout{}, err
+	}
+	if l.role, l.nf, err = l.findFeatures(index, opt); err != nil {
+		return csvLayout{}, err
+	}
+	if !opt.NoLabel && l.labelCol >= 0 {
+		l.role[l.labelCol] = roleLabel
+	}
+	return l, nil
+}
+
+// readHeader reads the header row and returns its names, trimmed, and its
+// line. It rejects a header past the column limit (before any per-column
+// storage is made) and one that is all numbers.
+func readHeader(rd *recordReader, maxCols int) ([]string, int, error) {
+	if maxCols <= 0 {
+		maxCols = defaultMaxColumns
+	}
+	rec, err := rd.next(0)
+	if err == io.EOF {
+		return nil, 0, &Error{Line: 1, Err: describe(ErrEmpty, "the file is empty; expected a header row naming the columns")}
+	}
+	if err != nil {
+		return nil, 0, err
+	}
+	line, _ := rd.cr.FieldPos(0)
 	if len(rec) > maxCols {
-		return nil, &Error{Line: hLine, Err: describe(ErrTooLarge, "header has %d columns, more than the limit of %d (CSVOptions.MaxColumns)", len(rec), maxCols)}
+		return nil, 0, &Error{Line: line, Err: describe(ErrTooLarge, "header has %d columns, more than the limit of %d (CSVOptions.MaxColumns)", len(rec), maxCols)}
 	}
 	names := make([]string, len(rec))
 	for i, v := range rec {
 		names[i] = strings.TrimSpace(v)
 	}
 	if allNumbers(names) {
-		return nil, &Error{Line: hLine, Err: describe(ErrNoHeader, "the first row is all numbers (%s); a header row naming the columns is probably missing", shown(rec[0]))}
+		return nil, 0, &Error{Line: line, Err: describe(ErrNoHeader, "the first row is all numbers (%s); a header row naming the columns is probably missing", shown(rec[0]))}
 	}
-	index := make(map[string]int, len(names))
-	for i, n := range names {
-		if j, ok := index[n]; ok {
-			return nil, &Error{Line: hLine, Column: n, Field: i + 1, Err: describe(ErrDuplicateColumn, "name used by fields %d and %d of the header", j+1, i+1)}
-		}
-		index[n] = i
-	}
+	return names, line, nil
+}
 
+// findLabel returns the label column's field (-1 for none), given the
+// field of each name. It rejects a first row that looks like data: a known
+// class beside numbers.
+func (l *csvLayout) findLabel(index map[string]int, opt *CSVOptions) (int, error) {
 	labelCol := -1
 	switch {
 	case opt.Label != "":
@@ -239,22 +291,28 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		if ok {
 			labelCol = j
 		} else if !opt.NoLabel {
-			return nil, &Error{Line: hLine, Column: opt.Label, Err: describe(ErrMissingColumn, "no label column of that name in the header (%s)%s", nameList(names), separatorHint(names, opt.Comma))}
+			return 0, &Error{Line: l.line, Column: opt.Label, Err: describe(ErrMissingColumn, "no label column of that name in the header (%s)%s", nameList(l.names), separatorHint(l.names, opt.Comma))}
 		}
 	case !opt.NoLabel:
-		labelCol = len(names) - 1
+		labelCol = len(l.names) - 1
 	}
-	readLabels := !opt.NoLabel
-	if labelCol >= 0 && readLabels && !opt.Multilabel && slices.Contains(opt.Classes, names[labelCol]) {
+	if labelCol >= 0 && !opt.NoLabel && !opt.Multilabel && slices.Contains(opt.Classes, l.names[labelCol]) {
 		// A label cell that is a known class beside feature cells that are
 		// all numbers: the first row is data, not a header.
-		rest := slices.Delete(slices.Clone(names), labelCol, labelCol+1)
+		rest := slices.Delete(slices.Clone(l.names), labelCol, labelCol+1)
 		if len(rest) > 0 && allNumbers(rest) {
-			return nil, &Error{Line: hLine, Err: describe(ErrNoHeader, "the first row looks like data (numbers and the class %s); a header row naming the columns is probably missing", shown(names[labelCol]))}
+			return 0, &Error{Line: l.line, Err: describe(ErrNoHeader, "the first row looks like data (numbers and the class %s); a header row naming the columns is probably missing", shown(l.names[labelCol]))}
 		}
 	}
+	return labelCol, nil
+}
 
-	// Feature columns: feature k is read from field feat[k] as cols[k] says.
+// findFeatures picks the feature columns, given the field of each name and
+// l.labelCol: opt.Columns or opt.Features in their order, else every field
+// but the label in file order. It returns each field's role (features and
+// ignored fields only) and the number of features.
+func (l *csvLayout) findFeatures(index map[string]int, opt *CSVOptions) ([]int, int, error) {
+	names := l.names
 	cols := opt.Columns
 	if cols == nil && opt.Features != nil {
 		cols = make([]Column, len(opt.Features))
@@ -262,7 +320,7 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			cols[k] = Column{Name: f}
 		}
 	}
-	var feat []int
+	var feat []int // feature k is field feat[k]
 	if cols != nil {
 		var missing []string
 		for _, c := range cols {
@@ -270,68 +328,235 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			switch {
 			case !ok:
 				missing = append(missing, c.Name)
-			case j == labelCol:
-				return nil, &Error{Line: hLine, Column: c.Name, Field: j + 1, Err: describe(ErrOptions, "the label column cannot also be a feature")}
+			case j == l.labelCol:
+				return nil, 0, &Error{Line: l.line, Column: c.Name, Field: j + 1, Err: describe(ErrOptions, "the label column cannot also be a feature")}
 			}
 			feat = append(feat, j)
 		}
 		if len(missing) > 0 {
-			return nil, &Error{Line: hLine, Column: missing[0], Err: describe(ErrMissingColumn, "feature columns %s not in the header (%s)%s", nameList(missing), nameList(names), separatorHint(names, opt.Comma))}
+			return nil, 0, &Error{Line: l.line, Column: missing[0], Err: describe(ErrMissingColumn, "feature columns %s not in the header (%s)%s", nameList(missing), nameList(names), separatorHint(names, opt.Comma))}
 		}
 	} else {
 		for j := range names {
-			if j != labelCol {
+			if j != l.labelCol {
 				feat = append(feat, j)
 				cols = append(cols, Column{Name: names[j]})
 			}
 		}
 		if opt.Inputs > 0 && len(feat) != opt.Inputs {
-			return nil, &Error{Line: hLine, Err: describe(ErrFeatureCount, "%d feature columns, expected %d (the spec's inputs)", len(feat), opt.Inputs)}
+			return nil, 0, &Error{Line: l.line, Err: describe(ErrFeatureCount, "%d feature columns, expected %d (the spec's inputs)", len(feat), opt.Inputs)}
 		}
 	}
 	if len(feat) == 0 {
-		return nil, &Error{Line: hLine, Err: describe(ErrMissingColumn, "no feature columns; expected at least one besides the label%s", separatorHint(names, opt.Comma))}
+		return nil, 0, &Error{Line: l.line, Err: describe(ErrMissingColumn, "no feature columns; expected at least one besides the label%s", separatorHint(names, opt.Comma))}
 	}
-	keep := make([]int, len(opt.Keep))
-	var absent []string
-	for i, k := range opt.Keep {
-		j, ok := index[k]
-		if !ok {
-			absent = append(absent, k)
-		}
-		keep[i] = j
-	}
-	if len(absent) > 0 {
-		return nil, &Error{Line: hLine, Column: absent[0], Err: describe(ErrMissingColumn, "kept columns %s not in the header (%s)", nameList(absent), nameList(names))}
-	}
-
-	var known map[string]int
-	if opt.Classes != nil {
-		known = make(map[string]int, len(opt.Classes))
-		for i, c := range opt.Classes {
-			known[c] = i
-		}
-	}
-
-	// role[j] is what field j is: feature k ≥ 0, the label, or ignored.
-	const (
-		ignored = -1
-		label   = -2
-	)
 	role := make([]int, len(names))
 	for j := range role {
-		role[j] = ignored
+		role[j] = roleIgnored
 	}
 	for k, j := range feat {
 		role[j] = k
 	}
-	if readLabels && labelCol >= 0 {
-		role[labelCol] = label
+	return role, len(feat), nil
+}
+
+// findKept sets fields[i] to the field of the column named keep[i].
+func (l *csvLayout) findKept(fields []int, keep []string) error {
+	var absent []string
+	for i, k := range keep {
+		fields[i] = slices.Index(l.names, k)
+		if fields[i] < 0 {
+			absent = append(absent, k)
+		}
 	}
-	nf := len(feat)
+	if len(absent) > 0 {
+		return &Error{Line: l.line, Column: absent[0], Err: describe(ErrMissingColumn, "kept columns %s not in the header (%s)", nameList(absent), nameList(l.names))}
+	}
+	return nil
+}
+
+// rowReader holds what reading the data rows shares. It stays on
+// readRows' stack, and so can the small slices and maps it points to, made
+// there, as long as none of them ends up in the Set or the error list:
+// what does is one pointer away, in cellsRead, or a local variable of read.
+type rowReader struct {
+	*csvLayout
+	cr   *csv.Reader // for the line of a field
+	opt  *CSVOptions
+	keep []int // field of each CSVOptions.Keep column
+
+	known       map[string]int    // class index by name; nil when the classes are collected from the file
+	isToken     map[string]bool   // the missing tokens
+	tokensFirst bool              // a token is itself a number, so tokens are checked before parsing
+	pool        map[string]string // class names, interned
+	row         int               // data rows read so far
+	failed      bool              // a problem was found in a cell
+	found       *cellsRead        // the texts of Text columns and the problems
+}
+
+// cellsRead is what reading the cells of the data rows collects besides
+// the rows' values and labels.
+type cellsRead struct {
+	texts   [][]string       // per feature: distinct texts of a Text column, nil for numbers
+	textIdx []map[string]int // per feature: index of each text in texts[k]
+
+	// Problems in cells are collected over the whole file: the first
+	// MaxListed in list, and past that a count per field in more.
+	list []*Error
+	more []int
+}
+
+// readRows finds the kept columns among the fields laid out as l says, then
+// reads the data rows after the header and returns them as a Set.
+func readRows(rd *recordReader, l *csvLayout, opt *CSVOptions) (*Set, error) {
+	keep := make([]int, len(opt.Keep))
+	if err := l.findKept(keep, opt.Keep); err != nil {
+		return nil, err
+	}
+	tokens := opt.MissingTokens
+	if tokens == nil {
+		tokens = defaultMissingTokens
+	}
+	var found cellsRead
+	found.texts, found.textIdx = textColumns(opt.Columns, l.nf)
+	rr := rowReader{
+		csvLayout: l,
+		cr:        rd.cr,
+		opt:       opt,
+		keep:      keep,
+		known:     classIndex(opt.Classes),
+		isToken:   make(map[string]bool, len(tokens)),
+		pool:      map[string]string{},
+		found:     &found,
+	}
+	rr.tokensFirst = addTokens(rr.isToken, tokens)
+	return rr.read(rd)
+}
+
+// read reads the data rows to the end of the file and returns them as a
+// Set. A problem with the file's structure stops reading at once; problems
+// in cells are collected and returned together at the end.
+func (rr *rowReader) read(rd *recordReader) (*Set, error) {
+	// What is kept of the rows is appended to local variables, which the
+	// compiler can start on the stack (kept is put in the Set below, not in
+	// newSet, for that reason).
 	var (
-		texts   [][]string       // per feature: distinct texts of a Text column, nil for numbers
-		textIdx []map[string]int // per feature: index of each text in texts[k]
+		x      = make([]float64, 0, 64*rr.nf) // the feature values, row after row
+		xr     = make([]float64, rr.nf)       // the current row, in feature order
+		lines  []int                          // the line of each row
+		kept   [][]string                     // the texts of the kept columns, per row
+		labels []string                       // single-label cells, trimmed, one per row
+		multi  [][]string                     // multi-label cells, split and trimmed, one per row
+	)
+	for {
+		rec, line, err := rr.nextRow(rd)
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, rr.stop(err)
+		}
+		// Fields in file order, so that problems are listed in file order.
+		for j, raw := range rec {
+			k := rr.role[j]
+			if k == roleIgnored {
+				continue
+			}
+			cell := strings.TrimSpace(raw)
+			switch {
+			case k >= 0:
+				xr[k] = rr.feature(j, k, cell)
+			case rr.opt.Multilabel:
+				if set, ok := rr.labelSet(j, cell); ok {
+					multi = append(multi, set)
+				}
+			default:
+				if label, ok := rr.label(j, cell); ok {
+					labels = append(labels, label)
+				}
+			}
+		}
+		if rr.failed {
+			continue // nothing more is kept once the file is known to be bad
+		}
+		x = append(x, xr...)
+		if len(rr.keep) > 0 {
+			kept = append(kept, keptRow(rec, rr.keep))
+		}
+		lines = append(lines, line)
+	}
+	if rr.row == 0 {
+		return nil, &Error{Line: rr.line, Err: describe(ErrEmpty, "only a header; expected data rows after it")}
+	}
+	if rr.failed {
+		return nil, newErrorList(rr.found.list, rr.found.more, rr.names)
+	}
+	s := rr.newSet(x, lines)
+	if rr.opt.Keep != nil {
+		s.Kept = kept
+	}
+	if !rr.opt.NoLabel {
+		if err := rr.setLabels(s, labels, multi); err != nil {
+			return nil, err
+		}
+	}
+	return s, nil
+}
+
+// nextRow reads the next data row and returns its record and line, or
+// io.EOF after the last row. Any other error is a problem with the file's
+// structure, among them a row past CSVOptions.MaxRows and a field count
+// unlike the header's.
+func (rr *rowReader) nextRow(rd *recordReader) ([]string, int, error) {
+	rec, err := rd.next(rr.row + 1)
+	if err != nil {
+		return nil, 0, err
+	}
+	rr.row++
+	line, _ := rr.cr.FieldPos(0)
+	if rr.opt.MaxRows > 0 && rr.row > rr.opt.MaxRows {
+		return nil, 0, &Error{Line: line, Row: rr.row, Err: describe(ErrTooLarge, "more than %d rows (CSVOptions.MaxRows)", rr.opt.MaxRows)}
+	}
+	if len(rec) != len(rr.names) {
+		return nil, 0, &Error{Line: line, Row: rr.row, Err: describe(ErrFieldCount, "%d fields, expected %d as in the header", len(rec), len(rr.names))}
+	}
+	return rec, line, nil
+}
+
+// addTokens adds the missing tokens to set and reports whether one of them
+// is itself a number.
+func addTokens(set map[string]bool, tokens []string) bool {
+	number := false
+	for _, t := range tokens {
+		set[t] = true
+		if _, err := parseNumber(t); err == nil {
+			number = true
+		}
+	}
+	return number
+}
+
+// classIndex returns the index of each class, or nil for nil classes. It
+// is small enough to be inlined, so that a small map can stay on the
+// caller's stack.
+func classIndex(classes []string) map[string]int {
+	if classes == nil {
+		return nil
+	}
+	m := make(map[string]int, len(classes))
+	for i, c := range classes {
+		m[c] = i
+	}
+	return m
+}
+
+// textColumns returns, per feature, an empty list of texts and an empty
+// index of texts for each Text column in cols and nil for the others; or
+// nil, nil when no column is a Text column.
+func textColumns(cols []Column, nf int) ([][]string, []map[string]int) {
+	var (
+		texts   [][]string
+		textIdx []map[string]int
 	)
 	for k, c := range cols {
 		if c.Text {
@@ -343,190 +568,155 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			textIdx[k] = make(map[string]int)
 		}
 	}
-	tokens := opt.MissingTokens
-	if tokens == nil {
-		tokens = defaultMissingTokens
-	}
-	isToken := make(map[string]bool, len(tokens))
-	tokensFirst := false // a token is itself a number, so tokens are checked before parsing
-	for _, t := range tokens {
-		isToken[t] = true
-		if _, err := parseNumber(t); err == nil {
-			tokensFirst = true
-		}
-	}
+	return texts, textIdx
+}
 
-	// Problems in cells are collected over the whole file: the first
-	// MaxListed in list, and past that a count per field in more.
-	var (
-		list   []*Error
-		more   []int
-		failed bool
-		row    int
-	)
-	// note records a problem in field j of the current row.
-	note := func(j int, kind, also error, format string, args ...any) {
-		failed = true
-		if len(list) >= MaxListed {
-			if more == nil {
-				more = make([]int, len(names))
-			}
-			more[j]++
-			return
-		}
-		l, _ := cr.FieldPos(j)
-		list = append(list, &Error{Line: l, Row: row, Column: names[j], Field: j + 1, Err: &detail{msg: fmt.Sprintf(format, args...), kind: kind, cause: also}})
+// keptRow returns the trimmed texts of the given fields of rec, copied off
+// the record.
+func keptRow(rec []string, fields []int) []string {
+	kr := make([]string, len(fields))
+	for i, j := range fields {
+		kr[i] = strings.Clone(strings.TrimSpace(rec[j]))
 	}
-	// stop ends reading at a problem with the file's structure, returning
-	// it after the cell problems found before it.
-	stop := func(err error) error {
-		var e *Error
-		if len(list) == 0 || !errors.As(err, &e) {
-			return err
-		}
-		return newErrorList(append(list, e), more, names)
-	}
+	return kr
+}
 
-	// Data rows.
-	pool := map[string]string{} // class names, interned
-	var (
-		x      = make([]float64, 0, 64*nf)
-		xr     = make([]float64, nf) // the current row, in feature order
-		lines  []int
-		labels []string   // single-label cells, trimmed
-		multi  [][]string // multi-label cells, split and trimmed
-		kept   [][]string
-	)
-	for {
-		rec, err := rd.next(row + 1)
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, stop(err)
-		}
-		row++
-		line, _ := cr.FieldPos(0)
-		if opt.MaxRows > 0 && row > opt.MaxRows {
-			return nil, stop(&Error{Line: line, Row: row, Err: describe(ErrTooLarge, "more than %d rows (CSVOptions.MaxRows)", opt.MaxRows)})
-		}
-		if len(rec) != len(names) {
-			return nil, stop(&Error{Line: line, Row: row, Err: describe(ErrFieldCount, "%d fields, expected %d as in the header", len(rec), len(names))})
-		}
-		// Fields in file order, so that problems are listed in file order.
-		for j, raw := range rec {
-			k := role[j]
-			if k == ignored {
-				continue
-			}
-			cell := strings.TrimSpace(raw)
-			if k == label {
-				if opt.Multilabel {
-					set := readMulti(cell, known, opt.Classes, func(format string, args ...any) {
-						note(j, ErrUnknownClass, nil, format, args...)
-					})
-					if !failed {
-						for i, c := range set {
-							set[i] = intern(pool, c)
-						}
-						multi = append(multi, set)
-					}
-					continue
-				}
-				if _, ok := known[cell]; cell == "" {
-					note(j, ErrEmptyField, nil, "empty label, expected a class name")
-				} else if known != nil && !ok {
-					hint := ""
-					if strings.Contains(cell, "|") {
-						hint = "; multi-label? set `multilabel: true`"
-					}
-					note(j, ErrUnknownClass, nil, "%s is not one of the classes %s%s", shown(cell), classList(opt.Classes), hint)
-				}
-				if !failed {
-					labels = append(labels, intern(pool, cell))
-				}
-				continue
-			}
-			c := cols[k]
-			missing := (c.Text || tokensFirst) && isToken[cell]
-			v := 0.0
-			if !missing && !c.Text {
-				var kind error
-				v, kind = parseNumber(cell)
-				switch {
-				case kind == nil:
-				case !tokensFirst && isToken[cell]:
-					missing = true
-				case kind == ErrEmptyField:
-					note(j, kind, nil, "empty field, expected a number")
-				case kind == ErrNotFinite:
-					note(j, kind, nil, "%s is not a finite number", shown(cell))
-				default:
-					note(j, kind, nil, "%s is not a number; declare `type: category` for a text column", shown(cell))
-				}
-			}
-			switch {
-			case missing && c.Missing:
-				v = math.NaN()
-			case missing:
-				var also error
-				if cell == "" {
-					also = ErrEmptyField
-				}
-				rules := "mean, median, mode"
-				if c.Text {
-					rules = "level, mode"
-				}
-				note(j, ErrMissingValue, also, "missing value %s; the spec's missing rule for this input is refuse: set `missing:` (e.g. %s)", shown(cell), rules)
-			case c.Text:
-				idx, ok := textIdx[k][cell]
-				if !ok {
-					idx = len(texts[k])
-					cell = strings.Clone(cell) // not the record's backing string
-					texts[k] = append(texts[k], cell)
-					textIdx[k][cell] = idx
-				}
-				v = float64(idx)
-			}
-			xr[k] = v
-		}
-		if failed {
-			continue // nothing more is kept once the file is known to be bad
-		}
-		x = append(x, xr...)
-		if len(keep) > 0 {
-			kr := make([]string, len(keep))
-			for i, j := range keep {
-				kr[i] = strings.Clone(strings.TrimSpace(rec[j]))
-			}
-			kept = append(kept, kr)
-		}
-		lines = append(lines, line)
+// feature returns the value of the cell of feature k, in field j: a number,
+// the index of a text in a Text column, or NaN for a missing cell where
+// the column allows one. A problem is noted and its value is not used.
+func (rr *rowReader) feature(j, k int, cell string) float64 {
+	var c Column // a number column refusing missing cells, unless opt.Columns says otherwise
+	if rr.opt.Columns != nil {
+		c = rr.opt.Columns[k]
 	}
-	if row == 0 {
-		return nil, &Error{Line: hLine, Err: describe(ErrEmpty, "only a header; expected data rows after it")}
+	missing := (c.Text || rr.tokensFirst) && rr.isToken[cell]
+	v := 0.0
+	if !missing && !c.Text {
+		var kind error
+		v, kind = parseNumber(cell)
+		switch {
+		case kind == nil:
+		case !rr.tokensFirst && rr.isToken[cell]:
+			missing = true
+		case kind == ErrEmptyField:
+			rr.note(j, kind, nil, "empty field, expected a number")
+		case kind == ErrNotFinite:
+			rr.note(j, kind, nil, "%s is not a finite number", shown(cell))
+		default:
+			rr.note(j, kind, nil, "%s is not a number; declare `type: category` for a text column", shown(cell))
+		}
 	}
-	if failed {
-		return nil, newErrorList(list, more, names)
+	switch {
+	case missing && c.Missing:
+		v = math.NaN()
+	case missing:
+		var also error
+		if cell == "" {
+			also = ErrEmptyField
+		}
+		rules := "mean, median, mode"
+		if c.Text {
+			rules = "level, mode"
+		}
+		rr.note(j, ErrMissingValue, also, "missing value %s; the spec's missing rule for this input is refuse: set `missing:` (e.g. %s)", shown(cell), rules)
+	case c.Text:
+		texts, index := rr.found.texts, rr.found.textIdx[k]
+		idx, ok := index[cell]
+		if !ok {
+			idx = len(texts[k])
+			cell = strings.Clone(cell) // not the record's backing string
+			texts[k] = append(texts[k], cell)
+			index[cell] = idx
+		}
+		v = float64(idx)
 	}
+	return v
+}
 
+// label reads the single-label cell in field j. It returns the class name,
+// interned, and true; or false once a cell of the file is bad, when labels
+// are no longer kept.
+func (rr *rowReader) label(j int, cell string) (string, bool) {
+	if _, ok := rr.known[cell]; cell == "" {
+		rr.note(j, ErrEmptyField, nil, "empty label, expected a class name")
+	} else if rr.known != nil && !ok {
+		hint := ""
+		if strings.Contains(cell, "|") {
+			hint = "; multi-label? set `multilabel: true`"
+		}
+		rr.note(j, ErrUnknownClass, nil, "%s is not one of the classes %s%s", shown(cell), classList(rr.opt.Classes), hint)
+	}
+	if rr.failed {
+		return "", false
+	}
+	return intern(rr.pool, cell), true
+}
+
+// labelSet reads the multi-label cell in field j. It returns the class
+// names, interned, and true; or false once a cell of the file is bad, when
+// labels are no longer kept.
+func (rr *rowReader) labelSet(j int, cell string) ([]string, bool) {
+	set := readMulti(cell, rr.known, rr.opt.Classes, func(format string, args ...any) {
+		rr.note(j, ErrUnknownClass, nil, format, args...)
+	})
+	if rr.failed {
+		return nil, false
+	}
+	for i, c := range set {
+		set[i] = intern(rr.pool, c)
+	}
+	return set, true
+}
+
+// note records a problem in field j of the current row.
+func (rr *rowReader) note(j int, kind, also error, format string, args ...any) {
+	rr.failed = true
+	found := rr.found
+	if len(found.list) >= MaxListed {
+		if found.more == nil {
+			found.more = make([]int, len(rr.names))
+		}
+		found.more[j]++
+		return
+	}
+	l, _ := rr.cr.FieldPos(j)
+	found.list = append(found.list, &Error{Line: l, Row: rr.row, Column: rr.names[j], Field: j + 1, Err: &detail{msg: fmt.Sprintf(format, args...), kind: kind, cause: also}})
+}
+
+// stop ends reading at a problem with the file's structure, returning it
+// after the problems in cells found before it.
+func (rr *rowReader) stop(err error) error {
+	var e *Error
+	if len(rr.found.list) == 0 || !errors.As(err, &e) {
+		return err
+	}
+	return newErrorList(append(rr.found.list, e), rr.found.more, rr.names)
+}
+
+// newSet returns a Set of the rows read, given their values x and lines,
+// without kept texts or labels.
+func (rr *rowReader) newSet(x []float64, lines []int) *Set {
+	opt := rr.opt
 	s := &Set{
-		X:          mat.NewDense(row, nf, x),
-		Features:   make([]string, nf),
-		Multilabel: opt.Multilabel && readLabels,
+		X:          mat.NewDense(rr.row, rr.nf, x),
+		Features:   make([]string, rr.nf),
+		Multilabel: opt.Multilabel && !opt.NoLabel,
 		Lines:      lines,
-		Texts:      texts,
+		Texts:      rr.found.texts,
 	}
-	if opt.Keep != nil {
-		s.Kept = kept
+	for j, k := range rr.role {
+		if k >= 0 {
+			s.Features[k] = rr.names[j]
+		}
 	}
-	for i, j := range feat {
-		s.Features[i] = names[j]
-	}
-	if !readLabels {
-		return s, nil
-	}
-	s.Label = names[labelCol]
+	return s
+}
+
+// setLabels sets the label column's name, the classes and Y of s from the
+// labels of the rows: labels for a single-label file, else multi.
+func (rr *rowReader) setLabels(s *Set, labels []string, multi [][]string) error {
+	opt := rr.opt
+	s.Label = rr.names[rr.labelCol]
 	classes := opt.Classes
 	if classes == nil {
 		if opt.Multilabel {
@@ -536,17 +726,15 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 		}
 	}
 	if len(classes) == 0 {
-		return nil, &Error{Line: hLine, Column: names[labelCol], Field: labelCol + 1, Err: describe(ErrNoClasses, "every label cell is empty; no class found")}
+		return &Error{Line: rr.line, Column: s.Label, Field: rr.labelCol + 1, Err: describe(ErrNoClasses, "every label cell is empty; no class found")}
 	}
 	s.Classes = slices.Clone(classes)
+	known := rr.known
 	if known == nil {
-		known = make(map[string]int, len(classes))
-		for i, c := range classes {
-			known[c] = i
-		}
+		known = classIndex(classes)
 	}
-	y := make([]float64, row*len(classes))
-	for i := range row {
+	y := make([]float64, rr.row*len(classes))
+	for i := range rr.row {
 		yi := y[i*len(classes) : (i+1)*len(classes)]
 		if opt.Multilabel {
 			for _, c := range multi[i] {
@@ -556,8 +744,8 @@ func ReadCSV(r io.Reader, opt CSVOptions) (*Set, error) {
 			yi[known[labels[i]]] = 1
 		}
 	}
-	s.Y = mat.NewDense(row, len(classes), y)
-	return s, nil
+	s.Y = mat.NewDense(rr.row, len(classes), y)
+	return nil
 }
 
 // readMulti splits a multi-label cell at '|' into trimmed class names,
