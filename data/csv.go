@@ -56,6 +56,13 @@ type CSVOptions struct {
 	MaxLineBytes int
 	// MaxRows bounds the number of data rows; 0 means no limit.
 	MaxRows int
+	// RowsHint, when > 0, is the number of data rows expected (a guess
+	// will do, such as one from the file's size): room for that many rows
+	// (at most MaxRows, when set) is set aside before the first is read,
+	// so that the rows are not grown and copied as they come, which holds
+	// up to a quarter more memory than they need and leaves the copies to
+	// the collector. Any number of rows is still read.
+	RowsHint int
 	// Columns, when non-nil, picks the feature columns by name in this
 	// order and says how to read each; it replaces Features (which must
 	// then be nil; setting both is ErrOptions). Names must be distinct, and
@@ -440,14 +447,24 @@ func (rr *rowReader) read(rd *recordReader) (*Set, error) {
 	// What is kept of the rows is appended to local variables, which the
 	// compiler can start on the stack (kept is put in the Set below, not in
 	// newSet, for that reason).
+	hint := max(rr.opt.RowsHint, 0)
+	if rr.opt.MaxRows > 0 {
+		hint = min(hint, rr.opt.MaxRows)
+	}
 	var (
-		x      = make([]float64, 0, 64*rr.nf) // the feature values, row after row
-		xr     = make([]float64, rr.nf)       // the current row, in feature order
-		lines  []int                          // the line of each row
-		kept   [][]string                     // the texts of the kept columns, per row
-		labels []string                       // single-label cells, trimmed, one per row
-		multi  [][]string                     // multi-label cells, split and trimmed, one per row
+		x      = make([]float64, 0, max(64, hint)*rr.nf) // the feature values, row after row
+		xr     = make([]float64, rr.nf)                  // the current row, in feature order
+		lines  []int                                     // the line of each row
+		kept   [][]string                                // the texts of the kept columns, per row
+		labels []string                                  // single-label cells, trimmed, one per row
+		multi  [][]string                                // multi-label cells, split and trimmed, one per row
 	)
+	if hint > 0 {
+		lines = make([]int, 0, hint)
+		if !rr.opt.NoLabel && !rr.opt.Multilabel {
+			labels = make([]string, 0, hint)
+		}
+	}
 	for {
 		rec, line, err := rr.nextRow(rd)
 		if err == io.EOF {

@@ -393,3 +393,25 @@ func indexOf(names []string, name string) int {
 	}
 	return -1
 }
+
+// RowsHint changes where the rows are kept, never what is read: the same
+// Set for no hint, a hint below, at and above the rows (iris: 150 rows),
+// and with a hint at or above the rows no room beyond the hint is taken.
+func TestRowsHint(t *testing.T) {
+	want := readFile(t, "iris.csv", CSVOptions{Label: "species"})
+	for _, tc := range []struct {
+		name string
+		hint int
+	}{{"below", 10}, {"exact", 150}, {"above", 160}, {"negative", -5}} {
+		t.Run(tc.name, func(t *testing.T) {
+			got := readFile(t, "iris.csv", CSVOptions{Label: "species", RowsHint: tc.hint})
+			assert.Equal(t, want, got)
+			if tc.hint >= 150 {
+				raw := got.X.RawMatrix()
+				assert.Equal(t, tc.hint*4, cap(raw.Data), "room for the hinted rows, no more")
+			}
+		})
+	}
+	got := readFile(t, "iris.csv", CSVOptions{Label: "species", RowsHint: 1 << 40, MaxRows: 200})
+	assert.Equal(t, 200*4, cap(got.X.RawMatrix().Data), "MaxRows bounds the room a hint takes")
+}

@@ -98,8 +98,8 @@ func limitHeap(s *spec.Network, set *data.Set, rows, holdout int) {
 // rowsGuess guesses the rows of the CSV file at path from its size and
 // the lines in its first MiB, so that the heap can be limited while the
 // rows are read; 0 when path is not a regular file or is too short to
-// tell. The guess is only a guide to the collector: the limit is set again
-// from the rows read.
+// tell. The guess is only a guide, to the collector and to the reader
+// (data.CSVOptions.RowsHint): the limit is set again from the rows read.
 func rowsGuess(path string) int {
 	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() || fi.Size() < 1<<20 {
 		return 0 // a small file needs no limit; a FIFO must not be opened twice

@@ -121,10 +121,12 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 	if err := refuseOverwrite("-checkpoint", f.checkpoint, "spec", f.spec, "data", f.data, "-out", f.out); err != nil {
 		return err
 	}
+	opt := withComma(dataFor(s, f.label), comma)
 	if guess := rowsGuess(f.data); guess > 0 {
 		limitHeap(s, nil, guess, int(f.holdout*float64(guess)))
+		opt.RowsHint = guess + guess/32 // the guess is within a few percent
 	}
-	set, err := loadData(ctx, f.data, withComma(dataFor(s, f.label), comma))
+	set, err := loadData(ctx, f.data, opt)
 	if err != nil {
 		return err
 	}
