@@ -193,8 +193,6 @@ func TestFolds(t *testing.T) {
 	}
 }
 
-func sorted(v []int) []int { return slices.Sorted(slices.Values(v)) }
-
 func TestSubsetLabelsCounts(t *testing.T) {
 	s, err := ReadCSV(strings.NewReader("a,k\n1,x\n2,y\n3,x\n"), CSVOptions{})
 	require.NoError(t, err)
