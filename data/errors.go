@@ -30,7 +30,6 @@ var (
 	ErrOptions         = errors.New("data: invalid options")                 // CSVOptions contradict themselves
 	ErrHoldout         = errors.New("data: holdout must be in (0, 1)")       // Split's holdout out of range
 	ErrTooFewRows      = errors.New("data: too few rows")                    // a split or fold would be empty
-	ErrScaler          = errors.New("data: invalid scaler")                  // a Scaler with bad lengths or values
 	ErrFolds           = errors.New("data: fold count must be in [2, rows]") // Folds' k out of range
 )
 

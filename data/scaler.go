@@ -153,19 +153,3 @@ func (s *Scaler) TransformRow(dst, x []float64) {
 		dst[j] = (v - s.Mean[j]) / s.Scale[j]
 	}
 }
-
-// Check reports whether s can be used, as after loading it from a file:
-// Mean and Scale of equal length ≥ 1, every Mean finite, every Scale finite
-// and > 0.
-func (s *Scaler) Check() error {
-	if len(s.Mean) == 0 || len(s.Mean) != len(s.Scale) {
-		return describe(ErrScaler, "data: scaler has %d means and %d scales", len(s.Mean), len(s.Scale))
-	}
-	for j := range s.Mean {
-		m, d := s.Mean[j], s.Scale[j]
-		if math.IsNaN(m) || math.IsInf(m, 0) || !(d > 0) || math.IsInf(d, 0) {
-			return describe(ErrScaler, "data: scaler feature %d has mean %v and scale %v; expected finite values and scale > 0", j, m, d)
-		}
-	}
-	return nil
-}

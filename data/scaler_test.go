@@ -6,7 +6,6 @@ import (
 	"testing"
 
 	"github.com/stretchr/testify/assert"
-	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
 )
@@ -20,7 +19,6 @@ func TestScalerAgreesWithGonum(t *testing.T) {
 			s := readFile(t, name, CSVOptions{})
 			sc, warn := FitScalerNamed(s.X, s.Features)
 			assert.Empty(t, warn)
-			require.NoError(t, sc.Check())
 			r, c := s.X.Dims()
 			col := make([]float64, r)
 			for j := range c {
@@ -87,25 +85,11 @@ func TestScalerExtremeValues(t *testing.T) {
 	x := mat.NewDense(4, 1, []float64{1e308, -1e308, 1e308, 1.7e308})
 	sc, warn := FitScaler(x)
 	assert.Empty(t, warn)
-	require.NoError(t, sc.Check())
 	// mean = 0.4425e308; deviations ±; SD by hand ≈ 1.2435e308 (sample).
 	col := []float64{1, -1, 1, 1.7}
 	m, sd := stat.MeanStdDev(col, nil)
 	assert.InEpsilon(t, m*1e308, sc.Mean[0], 1e-12)
 	assert.InEpsilon(t, sd*1e308, sc.Scale[0], 1e-12)
-}
-
-func TestScalerCheck(t *testing.T) {
-	for _, sc := range []Scaler{
-		{},
-		{Mean: []float64{0}, Scale: []float64{1, 1}},
-		{Mean: []float64{math.NaN()}, Scale: []float64{1}},
-		{Mean: []float64{0}, Scale: []float64{0}},
-		{Mean: []float64{0}, Scale: []float64{-1}},
-		{Mean: []float64{0}, Scale: []float64{math.Inf(1)}},
-	} {
-		assert.ErrorIs(t, sc.Check(), ErrScaler, "%+v", sc)
-	}
 }
 
 func TestScalerPanicsOnWrongWidth(t *testing.T) {
