@@ -9,7 +9,7 @@ import (
 
 // Set is a loaded data set: one row per example.
 type Set struct {
-	X          *mat.Dense // rows × features; nil only for a set of zero rows
+	X          *mat.Dense // rows × features; nil for a set of zero rows, or once train.Train dropped it (train.Options.DropRows)
 	Y          *mat.Dense // rows × len(Classes): one-hot (single-label) or multi-hot (multi-label); nil when the file had no label column or the set has zero rows
 	Classes    []string   // class names in the order of Y's columns
 	Features   []string   // feature names in the order of X's columns
@@ -31,13 +31,17 @@ type Set struct {
 	Label string
 }
 
-// Rows returns the number of rows.
+// Rows returns the number of rows: X's, or Y's once X was dropped.
 func (s *Set) Rows() int {
-	if s.X == nil {
-		return 0
+	switch {
+	case s.X != nil:
+		r, _ := s.X.Dims()
+		return r
+	case s.Y != nil:
+		r, _ := s.Y.Dims()
+		return r
 	}
-	r, _ := s.X.Dims()
-	return r
+	return 0
 }
 
 // Labels returns the class index of each row: the argmax of its row of Y
@@ -125,7 +129,9 @@ func (s *Set) Subset(rows []int) *Set {
 	if len(rows) == 0 {
 		return out
 	}
-	out.X = pick(s.X, rows)
+	if s.X != nil {
+		out.X = pick(s.X, rows)
+	}
 	if s.Y != nil {
 		out.Y = pick(s.Y, rows)
 	}

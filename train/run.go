@@ -65,6 +65,9 @@ func (r *run) prepare(s *spec.Network, batch int) error {
 	if err != nil {
 		return err
 	}
+	if r.cfg.DropRows {
+		r.set.X = nil
+	}
 	net, err := nn.Compile(prep.Spec)
 	if err != nil {
 		return err

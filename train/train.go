@@ -47,6 +47,14 @@ type Options struct {
 	Patience int
 	// NoScale leaves the features as they are instead of standardising them.
 	NoScale bool
+	// DropRows lets Train set the training set's X to nil once its rows
+	// are encoded, so that a caller that has no more use for the rows as
+	// read holds the training data once, encoded, while the net trains:
+	// the rows as read are then free for the collector. Labels, classes,
+	// names and Rows() stay; the holdout rows are kept (the model's own
+	// probabilities on them are measured at the end). The caller must not
+	// read the training set's X after.
+	DropRows bool
 	// Start is the initial params (copied); nil means the spec's
 	// initialisation with Seed.
 	Start []float64

@@ -207,3 +207,28 @@ func TestCancelKeepsModel(t *testing.T) {
 	require.NotNil(t, res.Model)
 	assert.Equal(t, optim.Cancelled, res.Run.Status)
 }
+
+// DropRows frees the training rows as read once they are encoded and
+// changes nothing else: the same params bit for bit, the same summary
+// rows, and the sets keep their labels and row counts.
+func TestDropRows(t *testing.T) {
+	s := parseSpec(t, irisSpec)
+	run := func(drop bool) (*Result, *data.Set, *data.Set) {
+		set := readSet(t, "testdata/iris.csv", nil)
+		tr, ho, err := data.Split(set, 0.2, 3)
+		require.NoError(t, err)
+		res, err := Train(context.Background(), s, tr, Options{Holdout: ho, DropRows: drop, Limits: optim.Limits{Iterations: 20}})
+		require.NoError(t, err)
+		return res, tr, ho
+	}
+	kept, tr0, ho0 := run(false)
+	dropped, tr, ho := run(true)
+	assert.Equal(t, kept.Model.Params(), dropped.Model.Params(), "params bit for bit")
+	assert.NotNil(t, tr0.X)
+	assert.Nil(t, tr.X)
+	assert.NotNil(t, ho.X, "holdout rows are kept")
+	assert.Equal(t, tr0.Rows(), tr.Rows())
+	assert.Equal(t, ho0.Rows(), ho.Rows())
+	assert.Equal(t, kept.Model.Summary().TrainRows, dropped.Model.Summary().TrainRows)
+	assert.Equal(t, kept.Model.Summary().HoldoutAccuracy, dropped.Model.Summary().HoldoutAccuracy)
+}

@@ -151,6 +151,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		KeepBest: f.keepBest,
 		Patience: f.patience,
 		NoScale:  !f.standardize,
+		DropRows: true, // the rows as read are not used after encoding
 
 		Calibrate:  f.calibrate,
 		Thresholds: f.rule,
