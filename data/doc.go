@@ -1,5 +1,6 @@
-// Package data reads data sets from CSV into matrices, fits the feature
-// scaler, and deals rows into stratified splits, folds and mini-batches.
+// Package data reads data sets from CSV into matrices and deals rows into
+// stratified splits and folds. Encoding the values for a net (fill values,
+// levels, standardisation) is package encode's job.
 // It imports no other package of the module.
 //
 // # CSV
@@ -70,19 +71,6 @@
 // For K classes, Set.Y has K columns. Single-label: row i is one-hot,
 // Y[i][c] = 1 when the row's class is c, else 0. Multi-label: row i is
 // multi-hot, Y[i][c] = 1 for every class c listed in its cell.
-//
-// # Scaler
-//
-// A Scaler standardizes each feature column j:
-//
-//	x'_j = (x_j − μ_j) / s_j,   μ_j = (1/n) Σ_i x_ij,
-//	s_j = √( Σ_i (x_ij − μ_j)² / (n − 1) )
-//
-// the sample standard deviation, as gonum's stat.MeanStdDev computes it;
-// a constant column gets s_j = 1 (centred, not scaled) and a warning. It
-// must be fitted on training rows only, never on holdout or prediction
-// rows, so that nothing about held-out rows leaks into training; that is
-// the caller's job: split first, then FitScaler(train.X).
 //
 // # Stratification
 //

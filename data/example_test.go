@@ -20,16 +20,11 @@ func ExampleReadCSV() {
 		fmt.Println(err)
 		return
 	}
-	// By hand: height mean 45, SD √(650/3) = 14.72; mass mean 13.65,
-	// SD √(341.77/3) = 10.67, so row 1 scales to (−15/14.72, −9.55/10.67).
-	sc, _ := data.FitScaler(s.X)
-	row := make([]float64, len(s.Features))
-	sc.TransformRow(row, s.X.RawRowView(0))
 	fmt.Println("rows:", s.Rows(), "classes:", s.Classes, "counts:", s.Counts())
-	fmt.Printf("height mean %.4g, SD %.4g; row 1 scaled: %.4g\n", sc.Mean[0], sc.Scale[0], row)
+	fmt.Println("features:", s.Features, "row 1:", s.X.RawRowView(0), "label:", s.Label)
 	// Output:
 	// rows: 4 classes: [cat dog] counts: [2 2]
-	// height mean 45, SD 14.72; row 1 scaled: [-1.019 -0.8947]
+	// features: [height_cm mass_kg] row 1: [30 4.1] label: kind
 }
 
 func ExampleError() {

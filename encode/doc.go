@@ -18,8 +18,9 @@
 // the mean, the median (the middle value, or the mean of the two middle
 // values), the mode (the most frequent value, the smallest on ties; for a
 // category the first level in level order), or the spec's constant. Mean
-// and Scale standardise the filled column (sample standard deviation, as
-// data.FitScaler); one-hot units are not scaled. Levels not declared in the
+// and Scale standardise the filled column (sample standard deviation,
+// divisor n − 1, as gonum's stat.MeanStdDev); one-hot units are not
+// scaled. Levels not declared in the
 // spec are learned from the training rows and ordered numerically when
 // every level is an integer, else by byte order, so that the order does not
 // depend on the order of the rows.

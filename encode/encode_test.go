@@ -399,8 +399,8 @@ func TestEncodeSetErrors(t *testing.T) {
 }
 
 // A number column whose values lie near both ends of the float64 range
-// (issue 13): the scaler must not overflow (data.FitScaler works on v/M
-// for a largest magnitude M), and the units must be finite.
+// (issue 13): the scaler must not overflow (fitScale works on v/M for a
+// largest magnitude M), and the units must be finite.
 func TestExtremeColumn(t *testing.T) {
 	col := []float64{1.7e308, -1.7e308, 1.6e308, -1.5e308, 0}
 	s := netOf([]string{"v"}, []spec.Input{{}})

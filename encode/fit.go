@@ -64,9 +64,9 @@ func (e *Encoder) Columns() []data.Column {
 // mean, the median — the middle value, or the mean of the two middle
 // values — the mode — the most frequent value, the smallest on ties — or
 // the spec's constant), then standardises the filled column:
-// Mean is its mean and Scale its sample standard deviation (see
-// data.FitScaler; 1 for a constant column, which is then reported among the
-// warnings). For each category without declared levels it learns the
+// Mean is its mean and Scale its sample standard deviation (divisor n − 1,
+// computed so that it cannot overflow for finite values; 1 for a constant
+// column, which is then reported among the warnings). For each category without declared levels it learns the
 // distinct texts of the training rows, ordered numerically when every one
 // is an integer and by byte order otherwise, so that the order does not
 // depend on the order of the rows; under MissingMode the fill level is the
@@ -133,10 +133,10 @@ func Fit(s *spec.Network, set *data.Set, opt Options) (e *Encoder, warnings []st
 				filled.Set(i, k, v)
 			}
 		}
-		sc, warn := data.FitScalerNamed(filled, numNames)
+		mean, scale, warn := fitScale(filled, numNames)
 		warnings = warn
 		for k, j := range numCols {
-			inputs[j].Mean, inputs[j].Scale = sc.Mean[k], sc.Scale[k]
+			inputs[j].Mean, inputs[j].Scale = mean[k], scale[k]
 		}
 	}
 	e, err = New(inputs, s.MissingTokens) // nil: New takes spec.DefaultMissingTokens
