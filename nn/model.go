@@ -272,7 +272,8 @@ func (m *Model) Decision() Decision { return m.decision }
 
 // SetLabel records the name of the label column of the training file,
 // which predict and evaluate look for; it refuses a name that is one of
-// the model's inputs.
+// the model's inputs. Like SetDecision and SetSummary, call it before the
+// model is shared between goroutines.
 func (m *Model) SetLabel(name string) error {
 	if err := m.built(); err != nil {
 		return err
