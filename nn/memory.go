@@ -20,12 +20,13 @@ import "runtime"
 // where S, at most 48 + 256·(96 + 480) words, is the most that a product
 // of a chunk needs (internal/gemm.BufLen; 0 under the openblas build tag),
 // plus at most 160 bytes per chunk for the chunk descriptors (two
-// blas64.General of 48 bytes each, and the lists of the batches). It leaves out what the
-// caller holds besides: the data set as read from the file (another m·K
-// words and one word per row and input column, which is n_0 per row when
-// every input is a number; often kept alongside the encoded copy), holdout
-// rows and their
-// workspace, and the optimizer's state. For the optimizer add P words for
+// blas64.General of 48 bytes each, and the lists of the batches). It
+// leaves out what the caller holds besides: the data set as read from the
+// file (another m·K words and one word per row and input column, which is
+// n_0 per row when every input is a number; held beside the encoded copy
+// at least while it is encoded, and for the whole run unless
+// train.Options.DropRows), holdout rows and their workspace, and the
+// optimizer's state. For the optimizer add P words for
 // each of the optim.StateVectors(method) vectors that a run of
 // optim.Minimize keeps, and P for the starting point the caller holds:
 // with the default L-BFGS (Memory 10) 1 + 26 = 27·P words in all.
