@@ -135,8 +135,8 @@ func writeInspect(w io.Writer, kind, path string, s *spec.Network, net *nn.Net, 
 	fmt.Fprintf(w, "    data as read         %s (x as read, y and line numbers)\n", bytesText(mem.Read))
 	fmt.Fprintf(w, "    data and evaluation  %s (encoded x and y, workspaces, gradient)\n", bytesText(mem.Objective+mem.Holdout))
 	fmt.Fprintf(w, "    optimizer (%s)%s %s (%d vectors of %d params)\n", method, strings.Repeat(" ", max(0, 8-len(method))), bytesText(mem.State), stateWords, P)
-	if mem.Split > mem.Objective+mem.Holdout+mem.State {
-		fmt.Fprintf(w, "    (splitting off the holdout copies the rows as read: %s at once)\n", bytesText(mem.Split))
+	if mem.split() > mem.Objective+mem.Holdout+mem.State {
+		fmt.Fprintf(w, "    (splitting off the holdout copies the rows as read: %s at once)\n", bytesText(mem.split()))
 	}
 	fmt.Fprintf(w, "    the tool itself      %s\n", bytesText(toolBytes))
 }

@@ -34,9 +34,6 @@ type trainingMemory struct {
 	Holdout int64
 	// State is the optimizer's vectors (optimState).
 	State int64
-	// Split is the copy of the rows that splitting off a holdout makes
-	// while the rows as read are still live; 0 without a holdout.
-	Split int64
 }
 
 // estimateTraining returns the memory that training the net of s on rows
@@ -55,16 +52,26 @@ func estimateTraining(net *nn.Net, s *spec.Network, rows, holdout int) trainingM
 	}
 	if holdout > 0 {
 		t.Holdout = net.TrainingBytes(holdout, nn.ObjectiveOptions{})
-		t.Split = t.Read
 	}
 	return t
 }
 
 // Peak is the most memory training holds at once: the tool itself and the
-// data as read, plus the larger of the holdout split's copy (made while
-// the rows as read are still live, then dropped) and what training adds.
+// data as read, plus the larger of the copy that splitting off a holdout
+// makes of them (while they are still live) and what training adds (the
+// rows are encoded while they are held as read; train drops the training
+// rows as read after, train.Options.DropRows).
 func (t trainingMemory) Peak() int64 {
-	return toolBytes + t.Read + max(t.Split, t.Objective+t.Holdout+t.State)
+	return toolBytes + t.Read + max(t.split(), t.Objective+t.Holdout+t.State)
+}
+
+// split is the copy of the rows as read that splitting off a holdout
+// makes: all of them, or nothing without a holdout.
+func (t trainingMemory) split() int64 {
+	if t.Holdout == 0 {
+		return 0
+	}
+	return t.Read
 }
 
 // heapLimit is the soft memory limit `seine train` gives Go's runtime:
