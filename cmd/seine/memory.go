@@ -105,9 +105,12 @@ func limitHeap(s *spec.Network, set *data.Set, rows, holdout int) {
 // rowsGuess guesses the rows of the CSV file at path from its size and
 // the lines in its first MiB, so that the heap can be limited while the
 // rows are read; 0 when path is not a regular file or is too short to
-// tell. The guess is only a guide, to the collector and to the reader
+// tell. A row of cols columns takes at least cols bytes (separators and
+// line end), so the guess never exceeds size/cols, whatever the first
+// MiB holds (a run of blank lines, say): room set aside for it is at
+// most 8 bytes per byte of the file. The guess is only a guide, to the collector and to the reader
 // (data.CSVOptions.RowsHint): the limit is set again from the rows read.
-func rowsGuess(path string) int {
+func rowsGuess(path string, cols int) int {
 	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() || fi.Size() < 1<<20 {
 		return 0 // a small file needs no limit; a FIFO must not be opened twice
 	}
@@ -126,7 +129,8 @@ func rowsGuess(path string) int {
 	if n == 0 || lines < 2 {
 		return 0
 	}
-	return int(fi.Size() * int64(lines) / int64(n))
+	guess := fi.Size() * int64(lines) / int64(n)
+	return int(min(guess, fi.Size()/int64(max(cols, 1))))
 }
 
 // levelsSeen returns s, or a copy of s in which each category input without

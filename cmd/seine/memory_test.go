@@ -125,3 +125,24 @@ func TestTrainMemory(t *testing.T) {
 		})
 	}
 }
+
+// The row guess follows the lines of a file's first MiB, and is bounded by
+// the file's size over the columns a row must have, so that a file whose
+// first MiB is blank lines cannot make train set aside more room than 8
+// bytes per byte of the file.
+func TestRowsGuess(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name string, b []byte) string {
+		p := filepath.Join(dir, name)
+		require.NoError(t, os.WriteFile(p, b, 0o644))
+		return p
+	}
+	line := []byte("1.5,2.25,3,kind\n") // 16 bytes
+	regular := write("regular.csv", bytes.Repeat(line, 200_000))
+	assert.Equal(t, 200_000, rowsGuess(regular, 4))
+	blank := write("blank.csv", append(bytes.Repeat([]byte("\n"), 2<<20), bytes.Repeat(line, 1000)...))
+	assert.Equal(t, (2<<20+16_000)/4, rowsGuess(blank, 4), "capped at size/columns")
+	assert.Zero(t, rowsGuess(write("small.csv", line), 4), "too small to need a guess")
+	assert.Zero(t, rowsGuess(filepath.Join(dir, "absent.csv"), 4))
+	assert.Zero(t, rowsGuess(dir, 4), "not a regular file")
+}

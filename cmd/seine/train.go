@@ -122,7 +122,7 @@ func runTrain(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	opt := withComma(dataFor(s, f.label), comma)
-	if guess := rowsGuess(f.data); guess > 0 {
+	if guess := rowsGuess(f.data, s.Inputs+1); guess > 0 { // the inputs and the label
 		limitHeap(s, nil, guess, int(f.holdout*float64(guess)))
 		opt.RowsHint = guess + guess/32 // the guess is within a few percent
 	}
