@@ -322,17 +322,34 @@ func TestParseBadFiles(t *testing.T) {
 	}
 }
 
+// problemAt is one problem a spec file must report, at its place.
+type problemAt struct {
+	line, col int
+	field     string
+	kind      error
+}
+
+// checkProblems reads the spec file name from testdata/bad and checks that
+// one pass reports exactly the problems want, in order: each once, at its
+// line, column and key path, wrapping its sentinel.
+func checkProblems(t *testing.T, name string, want []problemAt) ErrorList {
+	t.Helper()
+	_, err := parseFile(t, filepath.Join("testdata", "bad", name))
+	var list ErrorList
+	require.ErrorAs(t, err, &list)
+	require.Len(t, list, len(want), "%v", err)
+	for i, w := range want {
+		e := list[i]
+		assert.Equal(t, []any{w.line, w.col, w.field}, []any{e.Line, e.Column, e.Field}, "problem %d: %v", i, e)
+		assert.ErrorIs(t, e, w.kind, "problem %d", i)
+	}
+	return list
+}
+
 // TestParseSeveral checks that one pass reports every problem, in order,
 // and no follow-on problem twice.
 func TestParseSeveral(t *testing.T) {
-	_, err := parseFile(t, filepath.Join("testdata", "bad", "several.yaml"))
-	var list ErrorList
-	require.ErrorAs(t, err, &list)
-	want := []struct {
-		line, col int
-		field     string
-		kind      error
-	}{
+	list := checkProblems(t, "several.yaml", []problemAt{
 		{1, 10, "version", ErrVersion},
 		{2, 9, "inputs", ErrRange},
 		{5, 17, "hidden[0].activation", ErrUnknownName},
@@ -345,29 +362,16 @@ func TestParseSeveral(t *testing.T) {
 		{16, 3, "init.scale", ErrRange}, // absent: at its mapping
 		{18, 9, "train.rate", ErrRange},
 		{19, 14, "train.optimizer", ErrUnknownName},
-	}
-	require.Len(t, list, len(want), "%v", err)
-	for i, w := range want {
-		e := list[i]
-		assert.Equal(t, []any{w.line, w.col, w.field}, []any{e.Line, e.Column, e.Field}, "problem %d: %v", i, e)
-		assert.ErrorIs(t, e, w.kind, "problem %d", i)
-	}
+	})
 	for _, kind := range []error{ErrVersion, ErrUnknownField, ErrDuplicate} {
-		assert.ErrorIs(t, err, kind, "the list")
+		assert.ErrorIs(t, list, kind, "the list")
 	}
 }
 
 // TestParseSeveralTyped checks that the problems of typed inputs and class
 // weights are all reported in one pass, each once, at its key or value.
 func TestParseSeveralTyped(t *testing.T) {
-	_, err := parseFile(t, filepath.Join("testdata", "bad", "typed_several.yaml"))
-	var list ErrorList
-	require.ErrorAs(t, err, &list)
-	want := []struct {
-		line, col int
-		field     string
-		kind      error
-	}{
+	checkProblems(t, "typed_several.yaml", []problemAt{
 		{4, 11, "inputs[0].type", ErrUnknownName},
 		{7, 13, "inputs[1].levels", ErrRange},
 		{10, 20, "inputs[2].levels[2]", ErrDuplicate},
@@ -380,13 +384,7 @@ func TestParseSeveralTyped(t *testing.T) {
 		{28, 5, "train.class_weights.frod", ErrUnknownName}, // at the key
 		{29, 9, "train.class_weights.ok", ErrRange},         // at the value
 		{30, 12, "train.class_weights.fraud", ErrRange},
-	}
-	require.Len(t, list, len(want), "%v", err)
-	for i, w := range want {
-		e := list[i]
-		assert.Equal(t, []any{w.line, w.col, w.field}, []any{e.Line, e.Column, e.Field}, "problem %d: %v", i, e)
-		assert.ErrorIs(t, e, w.kind, "problem %d", i)
-	}
+	})
 }
 
 func TestErrorFormat(t *testing.T) {
