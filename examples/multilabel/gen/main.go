@@ -20,17 +20,14 @@ package main
 
 import (
 	"bufio"
-	"flag"
-	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 
-	"github.com/seine-ml/seine/internal/atomicfile"
+	"github.com/seine-ml/seine/examples/internal/gencmd"
 )
 
 // features lists the columns in file order, with what each one measures.
@@ -60,19 +57,7 @@ const (
 )
 
 func main() {
-	rows := flag.Int("rows", 2000, "number of readings to write")
-	seed := flag.Uint64("seed", 20261203, "random seed")
-	out := flag.String("out", filepath.Join("examples", "multilabel", "readings.csv"), "output CSV file")
-	flag.Parse()
-	if *rows < 1 {
-		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
-		os.Exit(2)
-	}
-	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "gen:", err)
-		os.Exit(1)
-	}
+	gencmd.Main("readings", 2000, 20261203, filepath.Join("examples", "multilabel", "readings.csv"), write)
 }
 
 // draw fills f with one reading and returns which faults are present.

@@ -18,15 +18,13 @@ package main
 
 import (
 	"bufio"
-	"flag"
 	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
-	"os"
 	"strconv"
 
-	"github.com/seine-ml/seine/internal/atomicfile"
+	"github.com/seine-ml/seine/examples/internal/gencmd"
 )
 
 // takeoverShare is the share of rows that are takeovers.
@@ -149,17 +147,5 @@ func write(out io.Writer, rows int, seed uint64) error {
 }
 
 func main() {
-	rows := flag.Int("rows", 6000, "number of rows")
-	seed := flag.Uint64("seed", 20261203, "seed of the random stream")
-	out := flag.String("out", "examples/rare/signins.csv", "CSV file to write")
-	flag.Parse()
-	if *rows < 1 {
-		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
-		os.Exit(2)
-	}
-	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "gen:", err)
-		os.Exit(1)
-	}
+	gencmd.Main("rows", 6000, 20261203, "examples/rare/signins.csv", write)
 }

@@ -16,16 +16,13 @@ package main
 
 import (
 	"bufio"
-	"flag"
-	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"strconv"
 
-	"github.com/seine-ml/seine/internal/atomicfile"
+	"github.com/seine-ml/seine/examples/internal/gencmd"
 )
 
 // features lists the number columns in file order, with what each one
@@ -220,19 +217,7 @@ func failShare(r *rand.Rand, n, p float64) float64 {
 }
 
 func main() {
-	rows := flag.Int("rows", 3000, "number of sessions to write")
-	seed := flag.Uint64("seed", 20261202, "random seed")
-	out := flag.String("out", filepath.Join("examples", "triage", "sessions.csv"), "output CSV file")
-	flag.Parse()
-	if *rows < 1 {
-		fmt.Fprintln(os.Stderr, "gen: -rows must be at least 1")
-		os.Exit(2)
-	}
-	err := atomicfile.Write(*out, func(w io.Writer) error { return write(w, *rows, *seed) })
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "gen:", err)
-		os.Exit(1)
-	}
+	gencmd.Main("sessions", 3000, 20261202, filepath.Join("examples", "triage", "sessions.csv"), write)
 }
 
 // write draws n sessions and writes them as CSV with a header row and the
