@@ -216,15 +216,24 @@ func ApplyTemperature(dst *mat.Dense, z mat.Matrix, t float64) error {
 		return fmt.Errorf("score: temperature %v: want a finite T > 0: %w", t, ErrValue)
 	}
 	m, k := z.Dims()
-	if dst.IsEmpty() {
-		dst.ReuseAs(m, k)
-	} else if dm, dk := dst.Dims(); dm != m || dk != k {
-		return fmt.Errorf("score: destination is %d×%d, logits %d×%d: %w", dm, dk, m, k, ErrShape)
+	if err := shapeLike(dst, m, k); err != nil {
+		return err
 	}
 	for i := 0; i < m; i++ {
 		for j := 0; j < k; j++ {
 			dst.Set(i, j, z.At(i, j)/t)
 		}
+	}
+	return nil
+}
+
+// shapeLike sizes an empty dst to m×k, or checks that dst is m×k (the
+// shape of the logits it is written from).
+func shapeLike(dst *mat.Dense, m, k int) error {
+	if dst.IsEmpty() {
+		dst.ReuseAs(m, k)
+	} else if dm, dk := dst.Dims(); dm != m || dk != k {
+		return fmt.Errorf("score: destination is %d×%d, logits %d×%d: %w", dm, dk, m, k, ErrShape)
 	}
 	return nil
 }
@@ -238,10 +247,8 @@ func Probabilities(dst *mat.Dense, z mat.Matrix, out Output) error {
 		return fmt.Errorf("score: %v: %w", out, ErrValue)
 	}
 	m, k := z.Dims()
-	if dst.IsEmpty() {
-		dst.ReuseAs(m, k)
-	} else if dm, dk := dst.Dims(); dm != m || dk != k {
-		return fmt.Errorf("score: destination is %d×%d, logits %d×%d: %w", dm, dk, m, k, ErrShape)
+	if err := shapeLike(dst, m, k); err != nil {
+		return err
 	}
 	for i := 0; i < m; i++ {
 		if out == Sigmoid {
