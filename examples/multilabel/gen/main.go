@@ -27,7 +27,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/seine-ml/seine/examples/internal/gencmd"
+	"github.com/seine-ml/seine/examples/internal/synth"
 )
 
 // features lists the columns in file order, with what each one measures.
@@ -57,7 +57,7 @@ const (
 )
 
 func main() {
-	gencmd.Main("readings", 2000, 20261203, filepath.Join("examples", "multilabel", "readings.csv"), write)
+	synth.Main("readings", 2000, 20261203, filepath.Join("examples", "multilabel", "readings.csv"), write)
 }
 
 // draw fills f with one reading and returns which faults are present.

@@ -24,7 +24,7 @@ import (
 	"math/rand/v2"
 	"strconv"
 
-	"github.com/seine-ml/seine/examples/internal/gencmd"
+	"github.com/seine-ml/seine/examples/internal/synth"
 )
 
 // takeoverShare is the share of rows that are takeovers.
@@ -47,18 +47,6 @@ func bern(r *rand.Rand, p float64) float64 {
 		return 1
 	}
 	return 0
-}
-
-// poisson draws by Knuth's multiplication method; fine for small means.
-func poisson(r *rand.Rand, lambda float64) float64 {
-	l, k, p := math.Exp(-lambda), 0.0, 1.0
-	for {
-		p *= r.Float64()
-		if p <= l {
-			return k
-		}
-		k++
-	}
 }
 
 // pick draws an index with the given shares (summing to 1).
@@ -87,7 +75,7 @@ func draw(r *rand.Rand) row {
 	var w row
 	w.takeover = r.Float64() < takeoverShare
 	if !w.takeover {
-		w.failed = poisson(r, 0.2)
+		w.failed = synth.Poisson(r, 0.2)
 		w.newDevice = bern(r, 0.07)
 		w.distance = logn(r, 1.6, 1.3) // km from the account's usual places; travellers make a long tail
 		w.age = math.Round(logn(r, 6.2, 1.0))
@@ -97,7 +85,7 @@ func draw(r *rand.Rand) row {
 	} else {
 		s := math.Sqrt(r.Float64()) // most attackers are careful
 		mix := func(obvious, careful float64) float64 { return (1-s)*obvious + s*careful }
-		w.failed = poisson(r, mix(5, 0.3))
+		w.failed = synth.Poisson(r, mix(5, 0.3))
 		w.newDevice = bern(r, mix(0.9, 0.2))
 		w.distance = logn(r, mix(7, 2.0), 1.3)
 		w.age = math.Round(logn(r, 6.6, 0.9)) // older accounts hold more worth taking
@@ -147,5 +135,5 @@ func write(out io.Writer, rows int, seed uint64) error {
 }
 
 func main() {
-	gencmd.Main("rows", 6000, 20261203, "examples/rare/signins.csv", write)
+	synth.Main("rows", 6000, 20261203, "examples/rare/signins.csv", write)
 }

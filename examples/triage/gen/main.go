@@ -22,7 +22,7 @@ import (
 	"path/filepath"
 	"strconv"
 
-	"github.com/seine-ml/seine/examples/internal/gencmd"
+	"github.com/seine-ml/seine/examples/internal/synth"
 )
 
 // features lists the number columns in file order, with what each one
@@ -90,17 +90,6 @@ func gamma(r *rand.Rand, shape float64) float64 {
 		}
 	}
 }
-func poisson(r *rand.Rand, lambda float64) float64 {
-	// Knuth's multiplication method; fine for the small means used here.
-	l, k, p := math.Exp(-lambda), 0.0, 1.0
-	for {
-		p *= r.Float64()
-		if p <= l {
-			return k
-		}
-		k++
-	}
-}
 func bern(r *rand.Rand, p float64) float64 {
 	if r.Float64() < p {
 		return 1
@@ -114,7 +103,7 @@ var kinds = []kind{
 		f[1] = beta(r, 0.04, 40)
 		f[2] = 100 * beta(r, 0.35, 8)
 		f[3] = beta(r, 0.55, 10)
-		f[4] = poisson(r, 0.4)
+		f[4] = synth.Poisson(r, 0.4)
 		f[5] = failShare(r, f[4], 0.2)
 		f[6] = logn(r, 0.3, 0.35)
 		f[7] = logn(r, 2.0, 0.8)
@@ -153,7 +142,7 @@ var kinds = []kind{
 		f[1] = beta(r, mix(0.12, 0.05), 25)
 		f[2] = 100 * beta(r, mix(0.7, 0.45), 10)
 		f[3] = beta(r, mix(0.05, 0.4), 10)
-		f[4] = poisson(r, 0.1)
+		f[4] = synth.Poisson(r, 0.1)
 		f[5] = failShare(r, f[4], 0.3)
 		f[6] = logn(r, mix(-0.8, 0.1), 0.45)
 		f[7] = logn(r, 2.6, 0.9)
@@ -171,7 +160,7 @@ var kinds = []kind{
 		f[1] = beta(r, 0.35, 10)
 		f[2] = 100 * beta(r, 0.08, 15)
 		f[3] = beta(r, 0.1, 10)
-		f[4] = 1 + poisson(r, 12)
+		f[4] = 1 + synth.Poisson(r, 12)
 		f[5] = failShare(r, f[4], 0.85)
 		f[6] = logn(r, -0.2, 0.6)
 		f[7] = logn(r, 1.6, 0.9)
@@ -189,7 +178,7 @@ var kinds = []kind{
 		f[1] = beta(r, 0.03, 30)
 		f[2] = 100 * beta(r, 0.03, 20)
 		f[3] = beta(r, 0.03, 20)
-		f[4] = poisson(r, 0.05)
+		f[4] = synth.Poisson(r, 0.05)
 		f[5] = failShare(r, f[4], 0.1)
 		f[6] = logn(r, -1.4, 0.6)
 		f[7] = logn(r, 4.0, 0.8)
@@ -217,7 +206,7 @@ func failShare(r *rand.Rand, n, p float64) float64 {
 }
 
 func main() {
-	gencmd.Main("sessions", 3000, 20261202, filepath.Join("examples", "triage", "sessions.csv"), write)
+	synth.Main("sessions", 3000, 20261202, filepath.Join("examples", "triage", "sessions.csv"), write)
 }
 
 // write draws n sessions and writes them as CSV with a header row and the
